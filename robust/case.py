@@ -1,0 +1,382 @@
+"""Case files: the loop, its toleranced parameters and the requirements (TOML).
+
+See ``docs/case-files.md`` for the format. Every problem is reported as one
+:class:`~robust.errors.CaseError` naming the file, the line when it can be found, the field,
+what is wrong and what was expected. Numbers are exact rationals from their decimal text.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import re
+import tomllib
+from dataclasses import dataclass
+from fractions import Fraction
+from pathlib import Path
+
+import sympy as sp
+
+from .errors import CaseError, FormulaError, InputError
+from .exact import parse_number, to_fraction
+from .expr import MAX_DEGREE, parse_formula
+from .family import Box, UncertainPolynomial, build_family
+
+__all__ = ["Case", "Parameter", "Requirements", "load_case", "parse_case"]
+
+_NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
+_MAX_PARAMETERS = 64
+_MAX_FILE = 1_000_000
+DISTRIBUTIONS = ("uniform", "normal")
+
+
+@dataclass(frozen=True, slots=True)
+class Parameter:
+    """A toleranced part: nominal value and the closed range it may take."""
+
+    name: str
+    nominal: Fraction
+    low: Fraction
+    high: Fraction
+    unit: str = ""
+    note: str = ""
+    distribution: str = "uniform"
+    tolerance: str = ""  # as written, for reports ("1%", "+-0.5", "range")
+
+    @property
+    def relative_tolerance(self) -> Fraction | None:
+        """Largest relative deviation from nominal (None when the nominal is 0)."""
+        if self.nominal == 0:
+            return None
+        return max(self.nominal - self.low, self.high - self.nominal) / abs(self.nominal)
+
+
+@dataclass(frozen=True, slots=True)
+class Requirements:
+    """What the sign-off asks for; None where not asked."""
+
+    margin: Fraction | None = None
+    decay_rate: Fraction | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Case:
+    """A loaded case: what the user wrote, and the family it defines."""
+
+    path: str
+    title: str
+    summary: str
+    variable: str
+    parameters: tuple[Parameter, ...]
+    form: str  # "expression" | "coefficients" | "loop"
+    formulas: tuple[tuple[str, str], ...]  # (field, text) as written
+    family: UncertainPolynomial
+    requirements: Requirements
+    sha256: str
+
+    @property
+    def names(self) -> tuple[str, ...]:
+        """Parameter names in family order."""
+        return self.family.names
+
+    def parameter(self, name: str) -> Parameter:
+        """The parameter called ``name``."""
+        return next(p for p in self.parameters if p.name == name)
+
+
+class _Reader:
+    """Keeps the file name and text so every error can say where it is."""
+
+    def __init__(self, path: str, text: str):
+        self.path = path
+        self.lines = text.splitlines()
+
+    def line_of(self, section: str, key: str | None = None) -> int | None:
+        """Best-effort line number of ``[section]`` or of ``key`` inside it."""
+        header = re.compile(r"\s*\[\s*" + re.escape(section).replace(r"\.", r"\s*\.\s*") + r"\s*\]")
+        start = None
+        for i, line in enumerate(self.lines):
+            if header.match(line):
+                start = i
+                break
+        if start is None:
+            if key is None:
+                return None
+            # a top-level key, or a dotted key at top level
+            pattern = re.compile(r"\s*" + re.escape(key) + r"\s*=")
+            for i, line in enumerate(self.lines):
+                if pattern.match(line):
+                    return i + 1
+            return None
+        if key is None:
+            return start + 1
+        pattern = re.compile(r"\s*" + re.escape(key) + r"\s*=")
+        for i in range(start + 1, len(self.lines)):
+            if self.lines[i].lstrip().startswith("["):
+                break
+            if pattern.match(self.lines[i]):
+                return i + 1
+        return start + 1
+
+    def error(self, section: str, key: str | None, problem: str, expected: str = "",
+              value: object = None) -> CaseError:
+        field = section + ("." + key if key else "") if section else (key or "")
+        return CaseError(self.path, field, problem, expected, value,
+                         self.line_of(section, key) if section or key else None)
+
+
+def _number(reader: _Reader, section: str, key: str, value: object) -> Fraction:
+    try:
+        return to_fraction(value, key)
+    except InputError as error:
+        raise reader.error(section, key, error.problem, error.expected or "a number", value) from None
+
+
+def _tolerance(reader: _Reader, section: str, value: object, nominal: Fraction) -> tuple[Fraction, Fraction, str]:
+    """Absolute deviation (down, up) and the text as written."""
+    expected = '"5%", "+-5%" or an absolute number such as 0.1 or "2m"'
+    if isinstance(value, bool) or not isinstance(value, (str, int, float)):
+        raise reader.error(section, "tolerance", "not a tolerance", expected, value)
+    text = value.strip() if isinstance(value, str) else repr(value)
+    body = text
+    for prefix in ("+-", "±", "+/-"):
+        if body.startswith(prefix):
+            body = body[len(prefix):].strip()
+            break
+    else:
+        if body.startswith("-"):
+            raise reader.error(section, "tolerance", "a tolerance cannot be negative", expected, value)
+    if body.endswith("%"):
+        try:
+            pct = parse_number(body[:-1], "tolerance", suffixes=False)
+        except InputError:
+            raise reader.error(section, "tolerance", "malformed percentage", expected, value) from None
+        if pct < 0:
+            raise reader.error(section, "tolerance", "a tolerance cannot be negative", expected, value)
+        if pct >= 100:
+            raise reader.error(section, "tolerance", "a tolerance of 100 % or more reaches zero",
+                               "a percentage below 100", value)
+        dev = abs(nominal) * pct / 100
+    else:
+        try:
+            dev = parse_number(body, "tolerance") if isinstance(value, str) else to_fraction(value)
+        except InputError:
+            raise reader.error(section, "tolerance", "malformed tolerance", expected, value) from None
+        if dev < 0:
+            raise reader.error(section, "tolerance", "a tolerance cannot be negative", expected, value)
+    return dev, dev, text
+
+
+def _parameter(reader: _Reader, name: str, table: object) -> Parameter:
+    section = f"parameters.{name}"
+    if not _NAME.match(name):
+        raise reader.error(section, None, "not a valid parameter name",
+                           "letters, digits and _ , starting with a letter", name)
+    if not isinstance(table, dict):
+        raise reader.error(section, None, "a parameter must be a table",
+                           "[parameters.NAME] with nominal and tolerance (or range)", table)
+    allowed = {"nominal", "tolerance", "range", "unit", "note", "distribution"}
+    for key in table:
+        if key not in allowed:
+            raise reader.error(section, key, "unknown key", ", ".join(sorted(allowed)))
+    has_tol, has_range = "tolerance" in table, "range" in table
+    if has_tol == has_range:
+        raise reader.error(section, None,
+                           "give exactly one of tolerance and range" if has_tol
+                           else "neither tolerance nor range given",
+                           "nominal + tolerance, or range = [low, high] (nominal optional)")
+    if has_range:
+        rng = table["range"]
+        if not isinstance(rng, list) or len(rng) != 2:
+            raise reader.error(section, "range", "a range is two numbers", "[low, high]", rng)
+        low = _number(reader, section, "range", rng[0])
+        high = _number(reader, section, "range", rng[1])
+        if low > high:
+            raise reader.error(section, "range", "the range is reversed", "low <= high", rng)
+        nominal = (_number(reader, section, "nominal", table["nominal"])
+                   if "nominal" in table else (low + high) / 2)
+        if not low <= nominal <= high:
+            raise reader.error(section, "nominal", "the nominal lies outside the range",
+                               f"a value in [{float(low):g}, {float(high):g}]", table["nominal"])
+        tol_text = "range"
+    else:
+        if "nominal" not in table:
+            raise reader.error(section, None, "a tolerance needs a nominal value", "nominal = ...")
+        nominal = _number(reader, section, "nominal", table["nominal"])
+        down, up, tol_text = _tolerance(reader, section, table["tolerance"], nominal)
+        low, high = nominal - down, nominal + up
+    distribution = table.get("distribution", "uniform")
+    if distribution not in DISTRIBUTIONS:
+        raise reader.error(section, "distribution", "unknown distribution",
+                           " or ".join(DISTRIBUTIONS), distribution)
+    for key in ("unit", "note"):
+        if key in table and not isinstance(table[key], str):
+            raise reader.error(section, key, "must be text", "a string", table[key])
+    return Parameter(name, nominal, low, high, table.get("unit", ""), table.get("note", ""),
+                     distribution, tol_text)
+
+
+def _formula(reader: _Reader, section: str, key: str, text: object, names, variable,
+             polynomial: bool, index: int | None = None):
+    field = key if index is None else f"{key}[{index}]"
+    if not isinstance(text, str | int | float) or isinstance(text, bool):
+        raise reader.error(section, key, "a formula must be text", '"..."', text)
+    try:
+        return parse_formula(str(text), names, variable, polynomial).expression
+    except FormulaError as error:
+        line = reader.line_of(section, key)
+        raise CaseError(reader.path, f"{section}.{field}",
+                        f"{error.problem} at column {error.position} of {error.text!r}",
+                        error.expected, None, line) from None
+
+
+def parse_case(text: str, path: str = "<case>") -> Case:
+    """Read a case from TOML text. See :func:`load_case`."""
+    reader = _Reader(path, text)
+    if not text.strip():
+        raise CaseError(path, "", "the file is empty", "a TOML case file (title, [parameters], [polynomial])")
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as error:
+        message = str(error)
+        match = re.search(r"\(at line (\d+), column (\d+)\)", message)
+        line = int(match.group(1)) if match else None
+        problem = re.sub(r"\s*\(at line \d+, column \d+\)", "", message)
+        if match:
+            problem += f" at column {match.group(2)}"
+        raise CaseError(path, "", f"TOML syntax error: {problem}", "valid TOML", None, line) from None
+    allowed = {"title", "summary", "variable", "parameters", "polynomial", "requirements"}
+    for key in data:
+        if key not in allowed:
+            raise reader.error("", key, "unknown top-level key", ", ".join(sorted(allowed)))
+    title = data.get("title", "")
+    if not isinstance(title, str) or not title.strip():
+        raise reader.error("", "title", "missing or empty title", 'title = "one line"')
+    summary = data.get("summary", "")
+    if not isinstance(summary, str):
+        raise reader.error("", "summary", "must be text", "a string")
+    variable = data.get("variable", "s")
+    if not isinstance(variable, str) or not _NAME.match(variable):
+        raise reader.error("", "variable", "not a valid variable name", 'e.g. "s"', variable)
+    params_table = data.get("parameters")
+    if params_table is None:
+        raise reader.error("parameters", None, "missing section [parameters]",
+                           "at least one [parameters.NAME] table")
+    if not isinstance(params_table, dict) or not params_table:
+        raise reader.error("parameters", None, "no parameters declared",
+                           "at least one [parameters.NAME] table")
+    if len(params_table) > _MAX_PARAMETERS:
+        raise reader.error("parameters", None, "too many parameters", f"at most {_MAX_PARAMETERS}")
+    parameters = tuple(_parameter(reader, name, t) for name, t in params_table.items())
+    names = tuple(p.name for p in parameters)
+    if variable in names:
+        raise reader.error(f"parameters.{variable}", None,
+                           "a parameter has the name of the polynomial variable",
+                           "another name", variable)
+    poly = data.get("polynomial")
+    if not isinstance(poly, dict):
+        raise reader.error("polynomial", None, "missing section [polynomial]",
+                           "[polynomial] with expression, coefficients or [polynomial.loop]")
+    forms = [k for k in ("expression", "coefficients", "loop") if k in poly]
+    for key in poly:
+        if key not in ("expression", "coefficients", "loop"):
+            raise reader.error("polynomial", key, "unknown key", "expression, coefficients or loop")
+    if len(forms) != 1:
+        raise reader.error("polynomial", None,
+                           "give exactly one of expression, coefficients and loop" if forms
+                           else "no polynomial given",
+                           "expression = \"...\", coefficients = [...] or [polynomial.loop]")
+    form = forms[0]
+    s = sp.Symbol(variable)
+    formulas: list[tuple[str, str]] = []
+    if form == "expression":
+        expr = _formula(reader, "polynomial", "expression", poly["expression"], names, variable, True)
+        formulas.append(("expression", str(poly["expression"])))
+    elif form == "coefficients":
+        items = poly["coefficients"]
+        if not isinstance(items, list) or not items:
+            raise reader.error("polynomial", "coefficients", "must be a non-empty list",
+                               '["a_n", ..., "a_0"], highest power first', items)
+        if len(items) > MAX_DEGREE + 1:
+            raise reader.error("polynomial", "coefficients", "degree too high",
+                               f"at most {MAX_DEGREE + 1} coefficients")
+        expr = sp.Integer(0)
+        n = len(items) - 1
+        for i, item in enumerate(items):
+            c = _formula(reader, "polynomial", "coefficients", item, names, None, False, i)
+            expr += c * s ** (n - i)
+            formulas.append((f"coefficients[{i}] (s^{n - i})", str(item)))
+    else:
+        loop = poly["loop"]
+        if not isinstance(loop, dict) or set(loop) - {"plant", "controller"} or "plant" not in loop:
+            raise reader.error("polynomial.loop", None, "a loop needs plant (and optionally controller)",
+                               'plant = "...", controller = "..."')
+        plant = _formula(reader, "polynomial.loop", "plant", loop["plant"], names, variable, False)
+        controller = _formula(reader, "polynomial.loop", "controller", loop.get("controller", "1"),
+                              names, variable, False)
+        formulas.append(("plant", str(loop["plant"])))
+        formulas.append(("controller", str(loop.get("controller", "1"))))
+        n_p, d_p = sp.fraction(sp.together(plant))
+        n_c, d_c = sp.fraction(sp.together(controller))
+        expr = sp.expand(d_p * d_c + n_p * n_c)
+        if expr == 0:
+            raise reader.error("polynomial.loop", "plant",
+                               "the characteristic polynomial 1 + P*C is identically zero",
+                               "a loop whose closed-loop denominator is not zero")
+    numerator, denominator = sp.fraction(sp.together(expr))
+    if denominator.has(s):
+        raise reader.error("polynomial", form, f"the characteristic polynomial is not polynomial in {variable}",
+                           f"a polynomial in {variable}")
+    degree = sp.degree(numerator, s) if numerator != 0 else 0
+    if degree > MAX_DEGREE:
+        raise reader.error("polynomial", form, "degree too high", f"degree <= {MAX_DEGREE}", degree)
+    box = Box(names, tuple(p.low for p in parameters), tuple(p.high for p in parameters))
+    nominal = tuple(p.nominal for p in parameters)
+    try:
+        family = build_family(numerator, denominator, s, names, box, nominal)
+    except InputError as error:
+        raise reader.error("polynomial", form, error.problem, error.expected) from None
+    requirements = _requirements(reader, data.get("requirements", {}))
+    return Case(path, title.strip(), summary.strip(), variable, parameters, form,
+                tuple(formulas), family, requirements,
+                hashlib.sha256(text.encode()).hexdigest())
+
+
+def _requirements(reader: _Reader, table: object) -> Requirements:
+    if not isinstance(table, dict):
+        raise reader.error("requirements", None, "must be a table", "[requirements]")
+    out = {}
+    for key in table:
+        if key not in ("margin", "decay_rate"):
+            raise reader.error("requirements", key, "unknown requirement", "margin, decay_rate")
+        value = _number(reader, "requirements", key, table[key])
+        if value < 0 or (key == "margin" and value == 0):
+            raise reader.error("requirements", key, "must be positive", "a positive number", table[key])
+        out[key] = value
+    return Requirements(out.get("margin"), out.get("decay_rate"))
+
+
+def load_case(path: str | Path) -> Case:
+    """Load and check a case file.
+
+    Raises
+    ------
+    CaseError
+        One line naming the file, line, field, the problem and what was expected.
+    """
+    name = str(path)
+    p = Path(path)
+    try:
+        raw = p.read_bytes()
+    except FileNotFoundError:
+        raise CaseError(name, "", "no such file", "the path of a .toml case file") from None
+    except IsADirectoryError:
+        raise CaseError(name, "", "is a directory", "the path of a .toml case file") from None
+    except OSError as error:
+        raise CaseError(name, "", f"cannot read the file ({error.strerror})") from None
+    if len(raw) > _MAX_FILE:
+        raise CaseError(name, "", "file too large for a case", f"at most {_MAX_FILE} bytes")
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError:
+        raise CaseError(name, "", "not UTF-8 text", "a TOML text file") from None
+    return parse_case(text, name)

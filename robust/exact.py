@@ -1,0 +1,104 @@
+"""Exact numbers from the text people write.
+
+Every number that enters an analysis becomes a :class:`fractions.Fraction` taken from its
+decimal text: ``"0.1"`` is ``1/10``, never the binary float nearest to it. TOML floats are
+read back through their shortest ``repr``, which is the decimal the user typed.
+"""
+
+from __future__ import annotations
+
+import re
+from fractions import Fraction
+from numbers import Rational
+
+from .errors import InputError
+
+__all__ = ["ENGINEERING_SUFFIXES", "format_fraction", "parse_number", "to_fraction"]
+
+#: Multipliers of the engineering suffixes accepted on numbers written as strings.
+ENGINEERING_SUFFIXES: dict[str, Fraction] = {
+    "p": Fraction(1, 10**12),
+    "n": Fraction(1, 10**9),
+    "u": Fraction(1, 10**6),
+    "µ": Fraction(1, 10**6),
+    "m": Fraction(1, 10**3),
+    "k": Fraction(10**3),
+    "M": Fraction(10**6),
+    "G": Fraction(10**9),
+}
+
+_NUMBER = re.compile(r"[+-]?(?:\d+(?:_\d+)*(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
+_MAX_EXPONENT = 400  # decimal exponents beyond this are typos, not component values
+
+
+def parse_number(text: str, what: str = "number", suffixes: bool = True) -> Fraction:
+    """Read a decimal number, optionally with one engineering suffix, exactly.
+
+    Parameters
+    ----------
+    text
+        E.g. ``"4.7k"``, ``"100n"``, ``"-1.5e-3"``, ``"2/3"``.
+    what
+        Named in the error message.
+    suffixes
+        Whether ``p n u m k M G`` are accepted after the number.
+
+    Raises
+    ------
+    InputError
+        When the text is not such a number.
+
+    Examples
+    --------
+    >>> parse_number("4.7k")
+    Fraction(4700, 1)
+    >>> parse_number("0.1")
+    Fraction(1, 10)
+    """
+    raw = text.strip()
+    expected = "a decimal number such as 4.7, 1e-3" + (" or 4.7k, 100n" if suffixes else "")
+    if "/" in raw:
+        num, _, den = raw.partition("/")
+        top, bottom = parse_number(num, what, False), parse_number(den, what, False)
+        if bottom == 0:
+            raise InputError(what, "division by zero", expected, text)
+        return top / bottom
+    scale = Fraction(1)
+    if suffixes and raw and raw[-1] in ENGINEERING_SUFFIXES:
+        scale, raw = ENGINEERING_SUFFIXES[raw[-1]], raw[:-1]
+    match = _NUMBER.fullmatch(raw)
+    if not match:
+        raise InputError(what, "not a number", expected, text)
+    mantissa, _, exponent = raw.replace("_", "").lower().partition("e")
+    if exponent and abs(int(exponent)) > _MAX_EXPONENT:
+        raise InputError(what, "decimal exponent out of range", f"|exponent| <= {_MAX_EXPONENT}", text)
+    value = Fraction(mantissa) * (Fraction(10) ** int(exponent or 0))
+    return value * scale
+
+
+def to_fraction(value: object, what: str = "number") -> Fraction:
+    """Convert an int, Fraction, decimal string or float to an exact Fraction.
+
+    Floats are taken from their shortest decimal ``repr`` (what a TOML or JSON reader saw),
+    so ``0.1`` becomes ``1/10``. Booleans, NaN and infinities are refused.
+    """
+    if isinstance(value, bool):
+        raise InputError(what, "a boolean is not a number", "a number", value)
+    if isinstance(value, Fraction):
+        return value
+    if isinstance(value, int):
+        return Fraction(value)
+    if isinstance(value, Rational):
+        return Fraction(int(value.numerator), int(value.denominator))
+    if isinstance(value, float):
+        if value != value or value in (float("inf"), float("-inf")):
+            raise InputError(what, "not a finite number", "a finite number", value)
+        return parse_number(repr(value), what, suffixes=False)
+    if isinstance(value, str):
+        return parse_number(value, what)
+    raise InputError(what, f"a {type(value).__name__} is not a number", "a number", value)
+
+
+def format_fraction(value: Fraction) -> str:
+    """Exact text of a rational: ``"3"``, ``"-7/20"``."""
+    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"

@@ -1,0 +1,302 @@
+"""The uncertain polynomial: coefficients as exact functions of toleranced parameters.
+
+A family is a characteristic polynomial a_n(p) s^n + ... + a_0(p) whose coefficients are
+exact polynomials in the parameters p, together with the parameter box. Rational
+dependence is cleared on the way in: a denominator that keeps one sign over the box
+multiplies out without moving any root; one that may vanish is an error.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from fractions import Fraction
+
+import sympy as sp
+
+from .errors import InputError
+from .polynomials import Bound, MultiPoly, as_intervals
+
+__all__ = ["Box", "UncertainPolynomial", "build_family", "classify"]
+
+#: The dependence classes, from the most to the least structured.
+KINDS = ("independent", "affine", "multilinear", "polynomial")
+
+
+@dataclass(frozen=True, slots=True)
+class Box:
+    """A parameter box: one closed interval [low, high] per parameter, in family order."""
+
+    names: tuple[str, ...]
+    low: tuple[Fraction, ...]
+    high: tuple[Fraction, ...]
+
+    @property
+    def intervals(self) -> tuple[tuple[Fraction, Fraction], ...]:
+        """(low, high) per parameter."""
+        return tuple(zip(self.low, self.high, strict=True))
+
+    @property
+    def center(self) -> tuple[Fraction, ...]:
+        """The midpoint."""
+        return tuple((a + b) / 2 for a, b in self.intervals)
+
+    def widths(self) -> tuple[Fraction, ...]:
+        """high - low per parameter."""
+        return tuple(b - a for a, b in self.intervals)
+
+    def relative_volume(self, outer: Box) -> Fraction:
+        """Volume relative to ``outer`` (degenerate directions of ``outer`` count as 1)."""
+        ratio = Fraction(1)
+        for (a, b), (c, d) in zip(self.intervals, outer.intervals, strict=True):
+            if d > c:
+                ratio *= (b - a) / (d - c)
+        return ratio
+
+    def contains(self, point: Sequence[Fraction]) -> bool:
+        """Whether a point lies in the closed box."""
+        return all(a <= x <= b for x, (a, b) in zip(point, self.intervals, strict=True))
+
+    def split(self, i: int, at: Fraction | None = None) -> tuple[Box, Box]:
+        """Two halves along parameter ``i`` (at its midpoint unless ``at`` is given)."""
+        lo, hi = self.low[i], self.high[i]
+        cut = (lo + hi) / 2 if at is None else at
+        left_high = list(self.high)
+        left_high[i] = cut
+        right_low = list(self.low)
+        right_low[i] = cut
+        return Box(self.names, self.low, tuple(left_high)), Box(self.names, tuple(right_low), self.high)
+
+    def scaled(self, nominal: Sequence[Fraction], rho: Fraction,
+               only: int | None = None) -> Box:
+        """box(rho): every half-width (or only parameter ``only``'s) scaled by rho about nominal."""
+        low, high = [], []
+        for i, (n, (a, b)) in enumerate(zip(nominal, self.intervals, strict=True)):
+            if only is None or i == only:
+                low.append(n - rho * (n - a))
+                high.append(n + rho * (b - n))
+            else:
+                low.append(a)
+                high.append(b)
+        return Box(self.names, tuple(low), tuple(high))
+
+    def vertices(self) -> list[tuple[Fraction, ...]]:
+        """Every corner (2^k for k non-degenerate directions)."""
+        corners: list[tuple[Fraction, ...]] = [()]
+        for a, b in self.intervals:
+            ends = (a,) if a == b else (a, b)
+            corners = [c + (v,) for c in corners for v in ends]
+        return corners
+
+    def as_dict(self) -> dict[str, list[str]]:
+        """JSON form: name -> [low, high] as exact strings."""
+        from .exact import format_fraction
+
+        return {n: [format_fraction(a), format_fraction(b)]
+                for n, (a, b) in zip(self.names, self.intervals, strict=True)}
+
+
+@dataclass(frozen=True, slots=True)
+class UncertainPolynomial:
+    """Coefficients of s^n .. s^0 as exact polynomials in the parameters, over a box.
+
+    Attributes
+    ----------
+    names
+        Parameter names, in the order of every exponent tuple and point.
+    coefficients
+        a_n .. a_0 (highest power first) as :class:`MultiPoly`.
+    box
+        The tolerance box.
+    nominal
+        The nominal point.
+    rational
+        True when the case's coefficients were rational in the parameters and a
+        sign-definite denominator was cleared.
+    cleared
+        Text of the cleared denominator ("" when none).
+    """
+
+    names: tuple[str, ...]
+    coefficients: tuple[MultiPoly, ...]
+    box: Box
+    nominal: tuple[Fraction, ...]
+    rational: bool = False
+    cleared: str = ""
+    _derivatives: tuple[tuple[MultiPoly, ...], ...] = field(default=(), repr=False, compare=False)
+
+    @property
+    def degree(self) -> int:
+        """Nominal degree n (the leading coefficient is not identically zero)."""
+        return len(self.coefficients) - 1
+
+    @property
+    def structure(self) -> str:
+        """The dependence class of the (cleared) coefficients: see :func:`classify`."""
+        return classify(self.coefficients)
+
+    @property
+    def kind(self) -> str:
+        """The class reported to people: ``rational`` when a denominator was cleared."""
+        return "rational" if self.rational else self.structure
+
+    def coefficients_at(self, point: Sequence[Fraction]) -> tuple[Fraction, ...]:
+        """Exact coefficients a_n .. a_0 at a rational parameter point."""
+        return tuple(c.evaluate(point) for c in self.coefficients)
+
+    def derivatives(self) -> tuple[tuple[MultiPoly, ...], ...]:
+        """Partial derivatives: ``[k][i]`` is d a_(n-k) / d p_i."""
+        if self._derivatives:
+            return self._derivatives
+        return tuple(tuple(c.derivative(i) for i in range(len(self.names)))
+                     for c in self.coefficients)
+
+    def with_box(self, box: Box) -> UncertainPolynomial:
+        """The same polynomial over another box (derivatives kept)."""
+        return UncertainPolynomial(self.names, self.coefficients, box, self.nominal,
+                                   self.rational, self.cleared, self.derivatives())
+
+    def bounds(self, box: Box | None = None) -> tuple[Bound, ...]:
+        """Range of each coefficient over the box (exact where monotone/multilinear, else outer)."""
+        box = box or self.box
+        intervals = as_intervals(box.intervals)
+        out = []
+        for coeff, derivs in zip(self.coefficients, self.derivatives(), strict=True):
+            (lo, hi), exact = coeff.bound(intervals, derivs)
+            out.append(Bound(Fraction(int(lo.numerator), int(lo.denominator)),
+                             Fraction(int(hi.numerator), int(hi.denominator)), exact))
+        return tuple(out)
+
+    def directions(self, box: Box | None = None) -> tuple[tuple[int | None, ...], ...]:
+        """Sign of each partial derivative over the box: ``[k][i]`` in {+1, -1, 0, None=mixed}."""
+        intervals = as_intervals((box or self.box).intervals)
+        return tuple(c.derivative_signs(intervals, d)
+                     for c, d in zip(self.coefficients, self.derivatives(), strict=True))
+
+    def formulas(self) -> tuple[str, ...]:
+        """Each coefficient as readable text, highest power first."""
+        return tuple(c.to_text(self.names) for c in self.coefficients)
+
+    def point_dict(self, point: Sequence[Fraction]) -> dict[str, Fraction]:
+        """name -> value."""
+        return dict(zip(self.names, point, strict=True))
+
+
+def classify(coefficients: Sequence[MultiPoly]) -> str:
+    """The dependence class of a family's coefficients.
+
+    * ``independent``: no parameter enters two coefficients (the interval overbound of the
+      coefficients is then realisable, so Kharitonov's test is exact);
+    * ``affine``: every coefficient is affine in the parameters;
+    * ``multilinear``: affine in each parameter separately;
+    * ``polynomial``: anything else.
+    """
+    seen: set[int] = set()
+    independent = True
+    for c in coefficients:
+        used = c.variables()
+        if used & seen:
+            independent = False
+        seen |= used
+    if independent:
+        return "independent"
+    if all(c.total_degree() <= 1 for c in coefficients):
+        return "affine"
+    if all(c.is_multilinear() for c in coefficients):
+        return "multilinear"
+    return "polynomial"
+
+
+def _to_multipoly(expr: sp.Expr, symbols: Sequence[sp.Symbol]) -> MultiPoly:
+    poly = sp.Poly(expr, *symbols, domain="QQ") if symbols else None
+    if poly is None:
+        value = sp.Rational(expr)
+        return MultiPoly.constant(0, Fraction(int(value.p), int(value.q)))
+    mapping = {
+        tuple(int(k) for k in monom): Fraction(int(c.p), int(c.q))
+        for monom, c in zip(poly.monoms(), poly.coeffs(), strict=True)
+    }
+    return MultiPoly.from_mapping(len(symbols), mapping)
+
+
+def _sign_over_box(poly: MultiPoly, box: Box, depth: int = 0) -> int:
+    """+1 or -1 when ``poly`` keeps that strict sign on the box, 0 when it may vanish."""
+    (lo, hi), exact = poly.bound(as_intervals(box.intervals))
+    if lo > 0:
+        return 1
+    if hi < 0:
+        return -1
+    if exact or depth >= 8:
+        return 0
+    widths = box.widths()
+    i = max(range(len(widths)), key=lambda k: widths[k])
+    halves = box.split(i)
+    signs = {_sign_over_box(poly, h, depth + 1) for h in halves}
+    return signs.pop() if len(signs) == 1 else 0
+
+
+def build_family(
+    numerator: sp.Expr,
+    denominator: sp.Expr,
+    variable: sp.Symbol,
+    names: Sequence[str],
+    box: Box,
+    nominal: Sequence[Fraction],
+    where: str = "polynomial",
+) -> UncertainPolynomial:
+    """Make the family from a characteristic polynomial numerator/denominator (sympy).
+
+    ``denominator`` must be free of the variable. Common factors of all coefficients that
+    depend only on the parameters are divided out when they keep one sign over the box.
+
+    Raises
+    ------
+    InputError
+        When the polynomial is zero, a denominator or common factor may vanish inside the
+        box, or the leading coefficient is identically zero.
+    """
+    symbols = [sp.Symbol(n) for n in names]
+    numerator = sp.expand(numerator)
+    if numerator == 0:
+        raise InputError(where, "the characteristic polynomial is identically zero",
+                         "a non-zero polynomial in " + str(variable))
+    poly_s = sp.Poly(numerator, variable)
+    coeffs = poly_s.all_coeffs()
+    content = sp.Integer(0)
+    for c in coeffs:
+        content = sp.gcd(content, c)
+    cleared = []
+    rational = False
+    if content.free_symbols:
+        coeffs = [sp.cancel(c / content) for c in coeffs]
+        cleared.append(content)
+    denominator = sp.expand(denominator)
+    if denominator.free_symbols:
+        rational = True
+        cleared.append(denominator)
+    for factor in cleared:
+        mp = _to_multipoly(sp.expand(factor), symbols)
+        if _sign_over_box(mp, box) == 0:
+            raise InputError(
+                where,
+                f"the factor {sp.sstr(factor)} may vanish inside the parameter box",
+                "formulas whose denominators and common factors keep one sign over the tolerances",
+            )
+    polys = tuple(_to_multipoly(sp.expand(c), symbols) for c in coeffs)
+    if len(polys) == 1:
+        raise InputError(where, f"the characteristic polynomial does not depend on {variable}",
+                         f"degree >= 1 in {variable}")
+    return UncertainPolynomial(
+        names=tuple(names),
+        coefficients=polys,
+        box=box,
+        nominal=tuple(nominal),
+        rational=rational,
+        cleared=" * ".join(sp.sstr(f) for f in cleared),
+    ).with_box(box)
+
+
+def box_from(names: Sequence[str], ranges: Mapping[str, tuple[Fraction, Fraction]]) -> Box:
+    """A Box from name -> (low, high)."""
+    return Box(tuple(names), tuple(ranges[n][0] for n in names),
+               tuple(ranges[n][1] for n in names))

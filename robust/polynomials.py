@@ -1,0 +1,248 @@
+"""Exact sparse polynomials in the parameters, with sound interval bounds.
+
+A coefficient of the characteristic polynomial is a :class:`MultiPoly`: a map from exponent
+tuples (one exponent per parameter, in the family's parameter order) to exact rationals.
+Arithmetic inside uses ``gmpy2.mpq`` (exact, and far faster than ``Fraction``); results
+leave as ``Fraction``.
+
+Bounds over a box use exact rational interval arithmetic (Moore, "Interval Analysis",
+1966): sound outer bounds, made exact where the polynomial is monotone in a parameter over
+the box (the sign of the partial derivative, itself bounded soundly) or multilinear (extrema
+of a multilinear function over a box sit at vertices).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass
+from fractions import Fraction
+from itertools import product
+
+import gmpy2
+import numpy as np
+
+__all__ = ["Bound", "MultiPoly", "interval_power"]
+
+mpq = gmpy2.mpq
+Interval = tuple  # (low, high) of mpq
+
+
+def _q(value: Fraction | int) -> gmpy2.mpq:
+    if isinstance(value, Fraction):
+        return mpq(value.numerator, value.denominator)
+    return mpq(value)
+
+
+def _f(value) -> Fraction:
+    return Fraction(int(value.numerator), int(value.denominator))
+
+
+def interval_power(low, high, k: int) -> Interval:
+    """Exact range of x^k for x in [low, high]."""
+    if k == 0:
+        return mpq(1), mpq(1)
+    a, b = low**k, high**k
+    if k % 2 == 0:
+        if low <= 0 <= high:
+            return mpq(0), max(a, b)
+        return (a, b) if a <= b else (b, a)
+    return a, b
+
+
+@dataclass(frozen=True, slots=True)
+class Bound:
+    """A range [low, high] of a coefficient over a box; ``exact`` when both ends are attained."""
+
+    low: Fraction
+    high: Fraction
+    exact: bool
+
+    def contains(self, value: Fraction) -> bool:
+        """Whether ``value`` lies in the closed range."""
+        return self.low <= value <= self.high
+
+
+@dataclass(frozen=True, slots=True)
+class MultiPoly:
+    """An exact polynomial in ``nvars`` parameters.
+
+    ``terms`` maps exponent tuples to non-zero ``gmpy2.mpq`` coefficients, kept sorted for a
+    canonical form.
+    """
+
+    nvars: int
+    terms: tuple[tuple[tuple[int, ...], object], ...]
+
+    @staticmethod
+    def from_mapping(nvars: int, mapping: Mapping[tuple[int, ...], object]) -> MultiPoly:
+        """Build from {exponents: coefficient}, dropping zeros."""
+        items = sorted((tuple(e), _q(c)) for e, c in mapping.items())
+        return MultiPoly(nvars, tuple((e, c) for e, c in items if c != 0))
+
+    @staticmethod
+    def constant(nvars: int, value: Fraction | int) -> MultiPoly:
+        """The constant polynomial."""
+        return MultiPoly.from_mapping(nvars, {(0,) * nvars: value})
+
+    # -- structure ------------------------------------------------------------------------
+    @property
+    def is_zero(self) -> bool:
+        """True for the zero polynomial."""
+        return not self.terms
+
+    def variables(self) -> frozenset[int]:
+        """Indices of the parameters that appear."""
+        return frozenset(i for e, _ in self.terms for i, k in enumerate(e) if k)
+
+    def total_degree(self) -> int:
+        """Largest total degree of a term (0 for constants and zero)."""
+        return max((sum(e) for e, _ in self.terms), default=0)
+
+    def degree_in(self, i: int) -> int:
+        """Largest exponent of parameter ``i``."""
+        return max((e[i] for e, _ in self.terms), default=0)
+
+    def is_multilinear(self) -> bool:
+        """Every parameter appears with exponent at most 1 in every term."""
+        return all(k <= 1 for e, _ in self.terms for k in e)
+
+    def derivative(self, i: int) -> MultiPoly:
+        """Partial derivative with respect to parameter ``i``."""
+        out: dict[tuple[int, ...], object] = {}
+        for e, c in self.terms:
+            if e[i]:
+                f = list(e)
+                f[i] -= 1
+                out[tuple(f)] = c * e[i]
+        return MultiPoly.from_mapping(self.nvars, out)
+
+    # -- evaluation -----------------------------------------------------------------------
+    def evaluate(self, point: Sequence[Fraction]) -> Fraction:
+        """Exact value at a rational point."""
+        return _f(self._evaluate_q([_q(x) for x in point]))
+
+    def _evaluate_q(self, point: Sequence) -> object:
+        total = mpq(0)
+        for e, c in self.terms:
+            term = c
+            for x, k in zip(point, e, strict=True):
+                if k:
+                    term = term * x**k
+            total += term
+        return total
+
+    def evaluate_many(self, points: np.ndarray) -> np.ndarray:
+        """Float values at many points (rows of ``points``): for screening, never for verdicts."""
+        out = np.zeros(points.shape[0])
+        for e, c in self.terms:
+            term = np.full(points.shape[0], float(c))
+            for i, k in enumerate(e):
+                if k:
+                    term = term * points[:, i] ** k
+            out += term
+        return out
+
+    def substitute(self, values: Mapping[int, object]) -> MultiPoly:
+        """Fix some parameters at exact values (the others stay)."""
+        out: dict[tuple[int, ...], object] = {}
+        for e, c in self.terms:
+            f = list(e)
+            coeff = c
+            for i, v in values.items():
+                if f[i]:
+                    coeff = coeff * _q(v) ** f[i]
+                    f[i] = 0
+            key = tuple(f)
+            out[key] = out.get(key, mpq(0)) + coeff
+        return MultiPoly.from_mapping(self.nvars, out)
+
+    # -- bounds ---------------------------------------------------------------------------
+    def outer_interval(self, box: Sequence[Interval]) -> Interval:
+        """Natural interval extension over ``box`` (a sequence of (low, high) mpq pairs)."""
+        low = high = mpq(0)
+        for e, c in self.terms:
+            tl = th = c
+            for (bl, bh), k in zip(box, e, strict=True):
+                if k:
+                    pl, ph = interval_power(bl, bh, k)
+                    cands = (tl * pl, tl * ph, th * pl, th * ph)
+                    tl, th = min(cands), max(cands)
+            if tl > th:
+                tl, th = th, tl
+            low += tl
+            high += th
+        return low, high
+
+    def derivative_signs(self, box: Sequence[Interval], derivatives: Sequence[MultiPoly] | None = None
+                         ) -> tuple[int | None, ...]:
+        """Per parameter: +1 (nondecreasing), -1 (nonincreasing), 0 (absent), None (mixed).
+
+        Sound: decided from an outer bound of each partial derivative over the box.
+        """
+        used = self.variables()
+        signs: list[int | None] = []
+        for i in range(self.nvars):
+            if i not in used or box[i][0] == box[i][1]:
+                signs.append(0)
+                continue
+            d = derivatives[i] if derivatives is not None else self.derivative(i)
+            lo, hi = d.outer_interval(box)
+            signs.append(1 if lo >= 0 else -1 if hi <= 0 else None)
+        return tuple(signs)
+
+    def bound(self, box: Sequence[Interval], derivatives: Sequence[MultiPoly] | None = None,
+              max_vertices: int = 4096) -> tuple[Interval, bool]:
+        """Range over the box as ((low, high), exact).
+
+        Parameters with a definite derivative sign are fixed at the bound-attaining end
+        (exact); the rest are enumerated over their vertices when the polynomial is
+        multilinear in them (exact), else bounded by interval arithmetic (outer).
+        """
+        if not self.terms:
+            return (mpq(0), mpq(0)), True
+        signs = self.derivative_signs(box, derivatives)
+        mixed = [i for i, s in enumerate(signs) if s is None]
+        ends = []
+        for want_high in (False, True):
+            fixed = {}
+            for i, s in enumerate(signs):
+                if s is not None and s != 0:
+                    up = (s > 0) == want_high
+                    fixed[i] = box[i][1] if up else box[i][0]
+                elif s == 0 and i in self.variables():
+                    fixed[i] = box[i][0]  # a degenerate (point) interval
+            ends.append(self.substitute(fixed) if fixed else self)
+        if not mixed:
+            return (ends[0]._evaluate_q([b[0] for b in box]),
+                    ends[1]._evaluate_q([b[0] for b in box])), True
+        multilinear_in_mixed = all(e[i] <= 1 for e, _ in self.terms for i in mixed)
+        if multilinear_in_mixed and 2 ** len(mixed) <= max_vertices:
+            values_low, values_high = [], []
+            for corner in product(*((box[i][0], box[i][1]) for i in mixed)):
+                point = [b[0] for b in box]
+                for i, v in zip(mixed, corner, strict=True):
+                    point[i] = v
+                values_low.append(ends[0]._evaluate_q(point))
+                values_high.append(ends[1]._evaluate_q(point))
+            return (min(values_low), max(values_high)), True
+        return (ends[0].outer_interval(box)[0], ends[1].outer_interval(box)[1]), False
+
+    def to_text(self, names: Sequence[str]) -> str:
+        """Readable formula, e.g. ``2*R1*C1 + 1/10``."""
+        if not self.terms:
+            return "0"
+        parts = []
+        for e, c in reversed(self.terms):
+            factors = [n if k == 1 else f"{n}^{k}" for n, k in zip(names, e, strict=True) if k]
+            cf = _f(c)
+            mag = abs(cf)
+            coeff = str(mag.numerator) if mag.denominator == 1 else f"{mag.numerator}/{mag.denominator}"
+            body = "*".join(([coeff] if (mag != 1 or not factors) else []) + factors)
+            parts.append(("-" if cf < 0 else "+") + " " + body)
+        text = " ".join(parts)
+        return text[2:] if text.startswith("+ ") else "-" + text[2:]
+
+
+def as_intervals(box: Iterable[tuple[Fraction, Fraction]]) -> list[Interval]:
+    """Convert a box of Fraction pairs to mpq pairs."""
+    return [(_q(lo), _q(hi)) for lo, hi in box]
