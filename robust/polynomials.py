@@ -131,6 +131,17 @@ class MultiPoly:
             total += term
         return total
 
+    def evaluate_float(self, point: Sequence[float]) -> float:
+        """Float value at one point (guidance only)."""
+        total = 0.0
+        for e, c in self.terms:
+            term = float(c)
+            for x, k in zip(point, e, strict=True):
+                if k:
+                    term *= x**k
+            total += term
+        return total
+
     def evaluate_many(self, points: np.ndarray) -> np.ndarray:
         """Float values at many points (rows of ``points``): for screening, never for verdicts."""
         out = np.zeros(points.shape[0])
@@ -226,6 +237,36 @@ class MultiPoly:
                 values_high.append(ends[1]._evaluate_q(point))
             return (min(values_low), max(values_high)), True
         return (ends[0].outer_interval(box)[0], ends[1].outer_interval(box)[1]), False
+
+    def attaining_point(self, box: Sequence[Interval], high: bool,
+                        derivatives: Sequence[MultiPoly] | None = None,
+                        max_vertices: int = 4096) -> list | None:
+        """A corner of the box where the low (or high) end of :meth:`bound` is attained.
+
+        Returns mpq coordinates for every parameter (those not involved at their low end),
+        or None when the bound is only an outer one.
+        """
+        signs = self.derivative_signs(box, derivatives)
+        point = [b[0] for b in box]
+        mixed = []
+        for i, s in enumerate(signs):
+            if s is None:
+                mixed.append(i)
+            elif s != 0:
+                point[i] = box[i][1] if (s > 0) == high else box[i][0]
+        if not mixed:
+            return point
+        if not all(e[i] <= 1 for e, _ in self.terms for i in mixed) or 2 ** len(mixed) > max_vertices:
+            return None
+        best, best_point = None, None
+        for corner in product(*((box[i][0], box[i][1]) for i in mixed)):
+            trial = list(point)
+            for i, v in zip(mixed, corner, strict=True):
+                trial[i] = v
+            value = self._evaluate_q(trial)
+            if best is None or (value > best if high else value < best):
+                best, best_point = value, trial
+        return best_point
 
     def to_text(self, names: Sequence[str]) -> str:
         """Readable formula, e.g. ``2*R1*C1 + 1/10``."""

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from fractions import Fraction
+
 from .exact import format_fraction
 from .routh import RouthTable, format_entry
 
@@ -59,4 +61,110 @@ def render_table(table: RouthTable) -> str:
     signs = "".join("+" if s > 0 else "-" for s in table.first_column_signs)
     lines.append(f"first-column signs: {signs}   sign changes: {table.sign_changes}")
     lines.append(roots_sentence(table))
+    return "\n".join(lines)
+
+
+def _fmt(value: Fraction) -> str:
+    """Exact value, with a float beside it when the fraction is not short."""
+    text = format_fraction(value)
+    if len(text) > 12 or value.denominator != 1:
+        return f"{float(value):.6g}" + (f" (= {text})" if len(text) <= 24 else "")
+    return text
+
+
+def _roots_line(roots) -> str:
+    return (f"{roots.open_right} in the open right half-plane, {roots.imaginary_axis} on the "
+            f"imaginary axis, {roots.open_left} in the open left half-plane")
+
+
+def render_check(case, result) -> str:
+    """The verdict of ``robust check`` for people."""
+    fam = case.family
+    lines = [f"Case: {case.title}   [{case.path}]",
+             f"Family: degree {fam.degree}, {len(fam.names)} parameters, {fam.kind} dependence"]
+    lines.append(f"Nominal: {_roots_line(result.nominal)}")
+    headline = {
+        "stable": "STABLE for every parameter set inside the tolerances (proven)",
+        "unstable": "UNSTABLE: a parameter set inside the tolerances is not stable",
+        "undecided": "UNDECIDED within the budget",
+    }[result.verdict]
+    lines.append(f"Verdict: {headline}")
+    lines.append(f"Method: {result.method_text}")
+    lines.append(f"Why: {result.reason}")
+    kh = result.overbound
+    if kh.stable:
+        lines.append("Certificate: the Kharitonov polynomials of the overbound over the whole box:")
+    else:
+        what = {"degree": "the leading coefficient's range contains zero",
+                "sign": "a coefficient's range reaches zero or changes sign",
+                "vertex": "Kharitonov polynomial(s) " + ", ".join(kh.failing) + " not Hurwitz"}
+        lines.append(f"Interval overbound over the whole box: inconclusive ({what.get(kh.reason, kh.reason)})")
+    for v in result.vertex_tables:
+        if v.table is None:
+            continue
+        signs = "".join("+" if s > 0 else "-" for s in v.table.first_column_signs)
+        lines.append(f"  {v.label}: first column signs {signs}  ->  "
+                     + ("Hurwitz" if v.hurwitz else f"{v.table.roots.open_right} right-half-plane root(s)"))
+    if result.method == "subdivision" and result.verdict == "stable":
+        lines.append(f"Subdivision: {result.proven_boxes} sub-boxes proven (of {result.boxes} examined), "
+                     f"depth up to {result.max_depth}")
+    if result.method == "edges":
+        lines.append(f"Edges: {result.edges} segments decided exactly")
+    if result.witness is not None:
+        w = result.witness
+        lines.append(f"Witness ({w.found_by}), exact values inside the box:")
+        for name, value in w.parameters.items():
+            p = case.parameter(name)
+            unit = f" {p.unit}" if p.unit else ""
+            lines.append(f"  {name} = {_fmt(value)}{unit}   [range {float(p.low):.6g} .. {float(p.high):.6g}]")
+        lines.append(f"  roots: {_roots_line(w.roots)}")
+        shown = ", ".join(f"{z.real:.4g}{z.imag:+.4g}j" for z in w.root_values()[:6])
+        lines.append(f"  root values (floats, for display): {shown}")
+    if result.verdict == "undecided":
+        lines.append(f"Unresolved: {float(result.unresolved):.3%} of the box volume")
+        if result.largest_unproven is not None:
+            parts = ", ".join(f"{n} in [{float(a):.6g}, {float(b):.6g}]"
+                              for n, (a, b) in zip(result.largest_unproven.names,
+                                                   result.largest_unproven.intervals, strict=True))
+            lines.append(f"Largest unproven sub-box: {parts}")
+    lines.append(f"Time: {result.seconds:.2f} s")
+    return "\n".join(lines)
+
+
+def trace_data(case, graph) -> dict:
+    """JSON form of ``robust trace``."""
+    fam = case.family
+    bounds = fam.bounds()
+    coefficients = []
+    for k, (coeff, b) in enumerate(zip(fam.coefficients, bounds, strict=True)):
+        power = fam.degree - k
+        deps = {}
+        for param in graph.predecessors(("coefficient", power)):
+            deps[param[1]] = graph.edges[param, ("coefficient", power)]["direction"]
+        coefficients.append({"power": power, "formula": coeff.to_text(fam.names),
+                             "low": format_fraction(b.low), "high": format_fraction(b.high),
+                             "low_float": float(b.low), "high_float": float(b.high),
+                             "bound": "exact" if b.exact else "outer", "parameters": deps})
+    vertices = {}
+    for node in graph.nodes:
+        if node[0] == "vertex":
+            from .graph import drivers
+
+            vertices[node[1]] = {name: dirs for name, dirs in drivers(graph, node[1]).items()}
+    return {"family_class": fam.kind, "degree": fam.degree, "parameters": list(fam.names),
+            "coefficients": coefficients, "vertices": vertices}
+
+
+def render_trace(case, graph) -> str:
+    """Parameter -> coefficient dependencies with directions, and the coefficient bounds."""
+    data = trace_data(case, graph)
+    lines = [f"Case: {case.title}   [{case.path}]",
+             f"Family: degree {data['degree']}, {data['family_class']} dependence", ""]
+    for c in data["coefficients"]:
+        deps = ", ".join(f"{n} ({d})" for n, d in c["parameters"].items()) or "constant"
+        lines.append(f"a{c['power']} (s^{c['power']}) = {c['formula']}")
+        lines.append(f"    range [{c['low_float']:.6g}, {c['high_float']:.6g}] ({c['bound']}); driven by: {deps}")
+    lines.append("")
+    lines.append("Directions: + the coefficient grows with the parameter over the whole box, "
+                 "- it falls, mixed: both.")
     return "\n".join(lines)

@@ -1,0 +1,454 @@
+"""The decision ladder: prove robust stability, refute it with a verified witness, or say
+honestly that the budget ran out.
+
+Steps, cheapest first; each is sound on its own:
+
+1. the nominal point (exact Routh array): an unstable nominal is a witness;
+2. the interval overbound of the coefficients over the box + Kharitonov's theorem: stable
+   proves the family stable (exact when no parameter enters two coefficients);
+3. realisation through the dependency graph: a failing Kharitonov vertex (or a coefficient
+   bound that breaks the sign condition) that one parameter point produces is a witness;
+4. a witness search: box corners, a seeded sample screened in floating point, and a local
+   optimisation (scipy) of the worst root's angle, every candidate re-decided exactly;
+5. affine families: the edge theorem, each box edge decided exactly (:mod:`robust.edges`);
+6. otherwise box subdivision: each sub-box proven by its own overbound + Kharitonov, or
+   split along the parameter that most widens the coefficient intervals; the centre of
+   each resisting box is tested exactly, and local searches run on stubborn boxes.
+
+Floats only choose where to look. Every "stable" is a proof in exact arithmetic; every
+"unstable" carries a rational parameter point inside the box whose exact Routh array is
+not Hurwitz.
+"""
+
+from __future__ import annotations
+
+import heapq
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field
+from fractions import Fraction
+
+import numpy as np
+
+from .edges import box_edges, check_segment
+from .exact import format_fraction
+from .family import Box, UncertainPolynomial
+from .interval import IntervalPolynomial, KharitonovResult, KharitonovVertex, kharitonov_test
+from .polynomials import as_intervals
+from .routh import RootCounts, is_hurwitz, routh_table
+from .search import search_witness
+
+__all__ = [
+    "DEFAULT_MAX_BOXES",
+    "DEFAULT_MAX_SECONDS",
+    "CheckResult",
+    "Witness",
+    "check",
+    "decide",
+]
+
+DEFAULT_MAX_SECONDS = 60.0
+DEFAULT_MAX_BOXES = 20_000
+
+METHOD_TEXT = {
+    "nominal": "nominal point, exact Routh array",
+    "kharitonov": "interval overbound of the coefficients + Kharitonov's theorem",
+    "kharitonov-vertex": "a Kharitonov vertex realised by one parameter point",
+    "coefficient-sign": "a coefficient bound realised by one parameter point (sign condition)",
+    "search": "witness search (corners, samples, local optimisation), exact re-check",
+    "edges": "edge theorem, every box edge decided exactly",
+    "subdivision": "box subdivision, interval overbound + Kharitonov on every sub-box",
+}
+
+Progress = Callable[[Fraction, int, float], None]
+
+
+@dataclass(frozen=True, slots=True)
+class Witness:
+    """A parameter point inside the box where the polynomial is not Hurwitz (exactly)."""
+
+    names: tuple[str, ...]
+    point: tuple[Fraction, ...]
+    coefficients: tuple[Fraction, ...]
+    roots: RootCounts
+    found_by: str
+
+    @property
+    def parameters(self) -> dict[str, Fraction]:
+        """name -> exact value."""
+        return dict(zip(self.names, self.point, strict=True))
+
+    def root_values(self) -> list[complex]:
+        """The witness polynomial's roots as floats, for display only."""
+        coeffs = [float(c) for c in self.coefficients]
+        while coeffs and coeffs[0] == 0:
+            coeffs.pop(0)
+        return sorted((complex(r) for r in np.roots(coeffs)), key=lambda z: -z.real)
+
+    def as_dict(self) -> dict[str, object]:
+        """JSON form (DESIGN.md section 5) with extras."""
+        return {
+            "parameters": {n: format_fraction(v) for n, v in zip(self.names, self.point, strict=True)},
+            "parameters_float": {n: float(v) for n, v in zip(self.names, self.point, strict=True)},
+            "roots": self.roots.as_dict(),
+            "coefficients": [format_fraction(c) for c in self.coefficients],
+            "root_values": [[z.real, z.imag] for z in self.root_values()],
+            "found_by": self.found_by,
+        }
+
+
+@dataclass(frozen=True, slots=True)
+class CheckResult:
+    """The answer of :func:`check`.
+
+    Attributes
+    ----------
+    verdict
+        ``"stable"`` (proven for every point of the box), ``"unstable"`` (``witness`` given)
+        or ``"undecided"`` (budget exhausted; ``unresolved`` and ``largest_unproven`` say what
+        is left).
+    method
+        Short id of the deciding step (see ``METHOD_TEXT``).
+    nominal
+        Root counts at the nominal point.
+    unresolved
+        Fraction of the box volume not proven stable (0 when decided).
+    """
+
+    verdict: str
+    method: str
+    kind: str
+    nominal: RootCounts
+    witness: Witness | None
+    unresolved: Fraction
+    largest_unproven: Box | None
+    boxes: int
+    proven_boxes: int
+    edges: int
+    seconds: float
+    overbound: KharitonovResult
+    reason: str
+    box: Box
+    max_depth: int = 0
+    vertex_tables: tuple[KharitonovVertex, ...] = field(default=())
+
+    @property
+    def method_text(self) -> str:
+        """The method in words."""
+        return METHOD_TEXT.get(self.method, self.method)
+
+    def as_dict(self) -> dict[str, object]:
+        """JSON form: verdict, method, nominal, witness, unresolved (DESIGN.md section 5)."""
+        return {
+            "verdict": self.verdict,
+            "method": self.method,
+            "method_text": self.method_text,
+            "family_class": self.kind,
+            "nominal": self.nominal.as_dict(),
+            "witness": self.witness.as_dict() if self.witness else None,
+            "unresolved": float(self.unresolved),
+            "largest_unproven": self.largest_unproven.as_dict() if self.largest_unproven else None,
+            "overbound": "stable" if self.overbound.stable else "inconclusive",
+            "reason": self.reason,
+            "boxes": self.boxes,
+            "proven_boxes": self.proven_boxes,
+            "edges": self.edges,
+            "max_depth": self.max_depth,
+            "seconds": round(self.seconds, 4),
+            "box": self.box.as_dict(),
+        }
+
+
+@dataclass
+class _Budget:
+    max_seconds: float
+    max_boxes: int
+    start: float = field(default_factory=time.perf_counter)
+    boxes: int = 0
+
+    def elapsed(self) -> float:
+        return time.perf_counter() - self.start
+
+    def exhausted(self) -> bool:
+        return self.boxes >= self.max_boxes or self.elapsed() >= self.max_seconds
+
+
+def _interval(family: UncertainPolynomial, box: Box) -> IntervalPolynomial:
+    bounds = family.bounds(box)
+    return IntervalPolynomial(tuple(b.low for b in bounds), tuple(b.high for b in bounds))
+
+
+def _make_witness(family: UncertainPolynomial, point: Sequence[Fraction], found_by: str,
+                  box: Box) -> Witness | None:
+    """A verified witness, or None when the point is stable or outside the box."""
+    point = tuple(point)
+    if not box.contains(point):
+        return None
+    coeffs = family.coefficients_at(point)
+    if all(c == 0 for c in coeffs) or is_hurwitz(coeffs):
+        return None
+    if coeffs[0] == 0:
+        return None  # a degree drop, not a witness by itself
+    table = routh_table(list(coeffs))
+    return Witness(family.names, point, coeffs, table.roots, found_by)
+
+
+def _realise_ends(family: UncertainPolynomial, box: Box, ends: Sequence[tuple[int, bool]]
+                  ) -> tuple[Fraction, ...] | None:
+    """One point giving coefficient k its high (True) or low end, for every (k, high) given;
+    None when two coefficients ask a shared parameter for different values."""
+    intervals = as_intervals(box.intervals)
+    derivs = family.derivatives()
+    point: dict[int, object] = {}
+    for k, high in ends:
+        coeff = family.coefficients[k]
+        corner = coeff.attaining_point(intervals, high, derivs[k])
+        if corner is None:
+            return None
+        for i in coeff.variables():
+            if i in point and point[i] != corner[i]:
+                return None
+            point[i] = corner[i]
+    out = []
+    for i, (lo, hi) in enumerate(box.intervals):
+        if i in point:
+            v = point[i]
+            out.append(Fraction(int(v.numerator), int(v.denominator)))
+        else:
+            out.append(min(max(family.nominal[i], lo), hi))
+    return tuple(out)
+
+
+def _realise_failure(family: UncertainPolynomial, box: Box, kh: KharitonovResult) -> Witness | None:
+    """Try to realise what made Kharitonov's test fail on this box."""
+    n = family.degree
+    fam = kh.family
+    flip = fam.high[0] < 0 if fam.degree_invariant else False
+    if kh.reason == "degree":
+        lead_positive = family.coefficients[0].evaluate(_inside(family, box)) > 0
+        point = _realise_ends(family, box, [(0, not lead_positive)])
+        return _make_witness(family, point, "leading coefficient changes sign", box) if point else None
+    if kh.reason == "sign" and kh.failing_coefficient is not None:
+        k = kh.failing_coefficient
+        point = _realise_ends(family, box, [(k, flip)])
+        return _make_witness(family, point, f"coefficient of s^{n - k} at its bound", box) if point else None
+    for label in kh.failing:
+        pattern = fam.pattern(label)
+        point = _realise_ends(family, box, [(k, w == "high") for k, w in enumerate(pattern)])
+        if point is not None:
+            w = _make_witness(family, point, f"Kharitonov vertex {label} realised", box)
+            if w is not None:
+                return w
+    return None
+
+
+def _inside(family: UncertainPolynomial, box: Box) -> tuple[Fraction, ...]:
+    nominal = family.nominal
+    if box.contains(nominal):
+        return nominal
+    return box.center
+
+
+def _split_index(family: UncertainPolynomial, box: Box) -> int:
+    """The parameter whose width most widens the coefficient intervals (relative)."""
+    center = [float(x) for x in box.center]
+    widths = [float(w) for w in box.widths()]
+    values = [abs(c.evaluate_float(center)) for c in family.coefficients]
+    scores = [0.0] * len(center)
+    for k, derivs in enumerate(family.derivatives()):
+        scale = values[k] or max(values) or 1.0
+        for i, d in enumerate(derivs):
+            if widths[i] and not d.is_zero:
+                slope = abs(d.evaluate_float(center))
+                # a second-order term keeps a parameter with zero slope at the centre in play
+                scores[i] += (slope * widths[i] + 1e-12 * widths[i]) / scale
+    best = max(range(len(scores)), key=lambda i: (scores[i], widths[i]))
+    if widths[best] == 0:
+        best = max(range(len(widths)), key=lambda i: widths[i])
+    return best
+
+
+def decide(
+    family: UncertainPolynomial,
+    box: Box | None = None,
+    max_seconds: float = DEFAULT_MAX_SECONDS,
+    max_boxes: int = DEFAULT_MAX_BOXES,
+    progress: Progress | None = None,
+    search: bool = True,
+    seed: int = 0,
+) -> CheckResult:
+    """Decide robust Hurwitz stability of ``family`` over ``box`` (default: its own box).
+
+    Parameters
+    ----------
+    max_seconds, max_boxes
+        The budget; when it runs out the verdict is ``"undecided"``.
+    progress
+        Called now and then with (proven volume fraction, boxes, seconds).
+    search
+        Run the witness search before subdividing (off for margin bisection, where the
+        caller searches itself).
+    """
+    box = box or family.box
+    budget = _Budget(max_seconds, max_boxes)
+    kind = family.kind
+    start_point = _inside(family, box)
+    nominal_coeffs = family.coefficients_at(start_point)
+    nominal_table = routh_table(list(nominal_coeffs)) if any(nominal_coeffs) else None
+    nominal_roots = nominal_table.roots if nominal_table else RootCounts(0, 0, 0)
+    kh = kharitonov_test(_interval(family, box))
+
+    def result(verdict: str, method: str, witness: Witness | None = None, unresolved=Fraction(0),
+               largest: Box | None = None, reason: str = "", proven: int = 0, edges: int = 0,
+               depth: int = 0) -> CheckResult:
+        return CheckResult(verdict, method, kind, nominal_roots, witness, unresolved, largest,
+                           budget.boxes, proven, edges, budget.elapsed(), kh, reason, box, depth)
+
+    if nominal_table is None or not nominal_table.is_hurwitz:
+        w = _make_witness(family, start_point, "nominal point", box)
+        if w is not None:
+            return result("unstable", "nominal", w, reason="the nominal design is not stable")
+        return result("undecided", "nominal", unresolved=Fraction(1), largest=box,
+                      reason="the nominal polynomial drops degree")
+    if kh.stable:
+        exact = family.structure == "independent"
+        return result("stable", "kharitonov",
+                      reason="the Kharitonov polynomials of the coefficient overbound are Hurwitz"
+                      + (" (exact: no parameter enters two coefficients)" if exact else ""))
+    w = _realise_failure(family, box, kh)
+    if w is not None:
+        method = "kharitonov-vertex" if kh.reason == "vertex" else "coefficient-sign"
+        return result("unstable", method, w, reason=f"{w.found_by}: not Hurwitz")
+    if search:
+        found = search_witness(family, box, seed=seed, deadline=budget.start + max_seconds * 0.25)
+        if found is not None:
+            w = _make_witness(family, found[0], found[1], box)
+            if w is not None:
+                return result("unstable", "search", w, reason=f"{w.found_by}: not Hurwitz")
+    if family.structure == "affine" and kh.reason != "degree":
+        edge_result = _check_edges(family, box, budget)
+        if edge_result is not None:
+            verdict, witness, count, note = edge_result
+            if verdict == "stable":
+                return result("stable", "edges", edges=count,
+                              reason=f"all {count} box edges are Hurwitz segments")
+            if verdict == "unstable":
+                return result("unstable", "edges", witness, edges=count,
+                              reason=f"{witness.found_by}: not Hurwitz")
+            if note:
+                return result("undecided", "edges", unresolved=Fraction(1), largest=box,
+                              edges=count, reason=note)
+    return _subdivide(family, box, budget, progress, result, seed)
+
+
+def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
+    """Edge theorem; None when the edges are too many for the budget."""
+    free = [i for i, (a, b) in enumerate(box.intervals) if b > a]
+    count = len(free) * 2 ** max(len(free) - 1, 0)
+    if count > budget.max_boxes or len(free) > 16:
+        return None
+    corners = []
+    for v in range(2 ** len(free)):
+        point = list(box.low)
+        for bit, i in enumerate(free):
+            if v >> bit & 1:
+                point[i] = box.high[i]
+        corners.append(tuple(point))
+    coeffs = [family.coefficients_at(p) for p in corners]
+    for i, (a, b) in enumerate(box_edges(len(corners), free)):
+        if budget.elapsed() > budget.max_seconds:
+            return None
+        budget.boxes += 1
+        seg = check_segment(coeffs[a], coeffs[b])
+        if seg.stable:
+            continue
+        if seg.witness_l is None:
+            return ("undecided", None, i + 1,
+                    "an edge touches the stability boundary only at irrational points "
+                    "(marginal family); no rational witness exists there")
+        lam = seg.witness_l
+        point = tuple((1 - lam) * x + lam * y for x, y in zip(corners[a], corners[b], strict=True))
+        w = _make_witness(family, point, f"point on a box edge ({seg.crossing} crossing)", box)
+        if w is not None:
+            return ("unstable", w, i + 1, "")
+    return ("stable", None, count, "")
+
+
+def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, result, seed: int):
+    heap: list[tuple[Fraction, int, Box, int]] = [(-Fraction(1), 0, box, 0)]
+    counter = 1
+    proven_volume = Fraction(0)
+    proven = 0
+    max_depth = 0
+    last_report = time.perf_counter()
+    searched_depths: set[int] = set()
+    while heap:
+        if budget.exhausted():
+            break
+        neg_vol, _, sub, depth = heapq.heappop(heap)
+        budget.boxes += 1
+        max_depth = max(max_depth, depth)
+        kh = kharitonov_test(_interval(family, sub))
+        if kh.stable:
+            proven_volume += -neg_vol
+            proven += 1
+        else:
+            w = _make_witness(family, sub.center, "centre of a sub-box", box)
+            if w is None and kh.reason in ("sign", "degree", "vertex"):
+                w = _realise_failure(family, sub, kh)
+            if w is None and depth >= 4 and depth % 4 == 0 and depth not in searched_depths:
+                searched_depths.add(depth)
+                found = search_witness(family, sub, seed=seed + depth, samples=64, local=2,
+                                       deadline=time.perf_counter() + 0.5)
+                if found is not None:
+                    w = _make_witness(family, found[0], found[1] + " (sub-box)", box)
+            if w is not None:
+                return result("unstable", "subdivision", w, reason=f"{w.found_by}: not Hurwitz",
+                              proven=proven, depth=max_depth)
+            i = _split_index(family, sub)
+            for half in sub.split(i):
+                vol = half.relative_volume(box)
+                heapq.heappush(heap, (-vol, counter, half, depth + 1))
+                counter += 1
+        now = time.perf_counter()
+        if progress is not None and now - last_report > 0.5:
+            progress(proven_volume, budget.boxes, budget.elapsed())
+            last_report = now
+    if not heap:
+        return result("stable", "subdivision", proven=proven, depth=max_depth,
+                      reason=f"{proven} sub-boxes, each proven by its own overbound + Kharitonov")
+    unresolved = 1 - proven_volume
+    largest = heap[0][2]
+    return result("undecided", "subdivision", unresolved=unresolved, largest=largest,
+                  proven=proven, depth=max_depth,
+                  reason=f"budget exhausted after {budget.boxes} boxes and {budget.elapsed():.1f} s; "
+                  f"{float(unresolved):.3%} of the box volume is unproven")
+
+
+def check(
+    case_or_family,
+    max_seconds: float = DEFAULT_MAX_SECONDS,
+    max_boxes: int = DEFAULT_MAX_BOXES,
+    progress: Progress | None = None,
+    seed: int = 0,
+) -> CheckResult:
+    """Decide whether a case (or family) is stable for every parameter set in its box.
+
+    Returns a :class:`CheckResult`; the vertex tables of the overbound are attached for
+    the certificate.
+
+    Examples
+    --------
+    >>> import robust
+    >>> result = robust.check(robust.load_case("cases/thermal_pi_affine.toml"))
+    >>> result.verdict
+    'stable'
+    """
+    family = getattr(case_or_family, "family", case_or_family)
+    res = decide(family, family.box, max_seconds, max_boxes, progress, True, seed)
+    tables = kharitonov_test(res.overbound.family, tables=True, reduced=False) \
+        if res.overbound.family.degree_invariant else res.overbound
+    from dataclasses import replace
+
+    return replace(res, vertex_tables=tables.vertices)
+
