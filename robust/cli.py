@@ -172,3 +172,90 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
         click.echo(render_trace(loaded, graph))
         if graphml is not None:
             click.echo(f"graph written to {graphml}")
+
+
+@main.command("margin")
+@click.argument("case", type=_CASE)
+@click.option("--cap", default="100", show_default=True, help="Largest tolerance scale tried.")
+@click.option("--rel-tol", type=click.FloatRange(min=1e-15, max=0.5), default=None,
+              help="Relative bracket width asked for [default: 1e-9 interval families, 1e-6 others].")
+@click.option("--max-seconds", type=click.FloatRange(min=0.1), default=60.0, show_default=True,
+              help="Budget: seconds of computation.")
+@click.option("--no-decay", is_flag=True, help="Skip the decay-rate margin.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
+@_guarded
+def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: float, no_decay: bool,
+                   as_json: bool) -> None:
+    """Robust margin rho* (how far every tolerance can grow) and the decay-rate margin.
+
+    Exit code 1 when a requirement of the case is not met.
+    """
+    from .case import load_case
+    from .exact import to_fraction
+    from .margin import margin
+    from .textout import render_margin
+
+    loaded = load_case(case)
+    cap_value = to_fraction(cap, "--cap")
+    if cap_value <= 0:
+        from .errors import InputError
+
+        raise InputError("--cap", "must be positive", "a number such as 100", cap)
+    click.echo("margin: computing (budget %.0f s)..." % max_seconds, err=True)
+    result = margin(loaded, cap=cap_value, rel_tol=rel_tol, max_seconds=max_seconds,
+                    with_decay=not no_decay)
+    if as_json:
+        _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
+    else:
+        click.echo(render_margin(loaded, result))
+    failed = result.passed is False or (result.decay is not None and result.decay.passed is False)
+    sys.exit(1 if failed else 0)
+
+
+@main.command("rank")
+@click.argument("case", type=_CASE)
+@click.option("--max-seconds", type=click.FloatRange(min=0.1), default=60.0, show_default=True,
+              help="Budget: seconds of computation.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
+@_guarded
+def rank_command(case: str, max_seconds: float, as_json: bool) -> None:
+    """Rank the parameters, most critical first, with their margins."""
+    from .case import load_case
+    from .rank import rank
+    from .textout import render_rank
+
+    loaded = load_case(case)
+    click.echo("rank: computing (budget %.0f s)..." % max_seconds, err=True)
+    result = rank(loaded, max_seconds=max_seconds)
+    if as_json:
+        _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
+    else:
+        click.echo(render_rank(loaded, result))
+
+
+@main.command("yield")
+@click.argument("case", type=_CASE)
+@click.option("-n", "draws", type=click.IntRange(min=1, max=10**8), default=100_000, show_default=True,
+              help="Number of random builds.")
+@click.option("--seed", type=int, default=0, show_default=True, help="Random seed.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
+@_guarded
+def yield_command(case: str, draws: int, seed: int, as_json: bool) -> None:
+    """Monte Carlo yield: the fraction of random builds that are stable."""
+    from .case import load_case
+    from .montecarlo import estimate_yield
+    from .textout import render_yield
+
+    loaded = load_case(case)
+
+    def progress(done: int, total: int) -> None:
+        width = 30
+        filled = int(width * done / total)
+        click.echo(f"\ryield: [{'#' * filled}{'.' * (width - filled)}] {done}/{total}", err=True,
+                   nl=done >= total)
+
+    result = estimate_yield(loaded, draws, seed, progress=progress)
+    if as_json:
+        _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
+    else:
+        click.echo(render_yield(loaded, result))

@@ -71,12 +71,14 @@ def check_segment(p0: Sequence[Fraction], p1: Sequence[Fraction]) -> SegmentResu
     if not is_hurwitz(p1):
         return SegmentResult(False, Fraction(1), "end")
     n = len(p0) - 1
-    coeffs = [sp.Rational(a.numerator, a.denominator) * (1 - _L)
-              + sp.Rational(b.numerator, b.denominator) * _L for a, b in zip(p0, p1, strict=True)]
-    factors = {"origin": sp.Poly(coeffs[-1], _L), "infinity": sp.Poly(coeffs[0], _L)}
+    lam_polys = {"origin": _affine(p0[-1], p1[-1]), "infinity": _affine(p0[0], p1[0])}
     if n >= 2:
-        det = hurwitz_matrix(coeffs, n - 1).det(method="berkowitz")
-        factors["imaginary pair"] = sp.Poly(sp.expand(det), _L)
+        lam_polys["imaginary pair"] = _delta_polynomial(p0, p1)
+    factors = {}
+    for name, coeffs in lam_polys.items():
+        if _positive_on_unit_interval(coeffs):
+            continue  # certified: no root in [0, 1]
+        factors[name] = sp.Poly([sp.Rational(c.numerator, c.denominator) for c in reversed(coeffs)], _L)
     live = {}
     for name, poly in factors.items():
         if poly.is_zero:
@@ -103,6 +105,78 @@ def check_segment(p0: Sequence[Fraction], p1: Sequence[Fraction]) -> SegmentResu
             if 0 <= lam <= 1 and not is_hurwitz(_combine(p0, p1, lam)):
                 return SegmentResult(False, lam, next(iter(live)))
     return SegmentResult(False, None, next(iter(live)))  # touches the boundary only
+
+
+def _affine(a: Fraction, b: Fraction) -> list[Fraction]:
+    """(1 - l) a + l b as ascending coefficients in l."""
+    return [a, b - a]
+
+
+def _determinant(matrix: list[list[Fraction]]) -> Fraction:
+    """Exact determinant by Gaussian elimination on Fractions."""
+    m = [row[:] for row in matrix]
+    size = len(m)
+    det = Fraction(1)
+    for col in range(size):
+        pivot = next((r for r in range(col, size) if m[r][col] != 0), None)
+        if pivot is None:
+            return Fraction(0)
+        if pivot != col:
+            m[col], m[pivot] = m[pivot], m[col]
+            det = -det
+        det *= m[col][col]
+        for r in range(col + 1, size):
+            factor = m[r][col] / m[col][col]
+            if factor:
+                for c in range(col, size):
+                    m[r][c] -= factor * m[col][c]
+    return det
+
+
+def _delta_polynomial(p0: Sequence[Fraction], p1: Sequence[Fraction]) -> list[Fraction]:
+    """Ascending coefficients in l of Delta_(n-1)((1 - l) p0 + l p1).
+
+    Its degree is at most n - 1, so n exact evaluations and Lagrange interpolation give it.
+    """
+    n = len(p0) - 1
+    order = n - 1
+    nodes = [Fraction(j) for j in range(order + 1)]
+    values = []
+    for lam in nodes:
+        c = _combine(p0, p1, lam)
+
+        def a(k: int, c=c) -> Fraction:
+            return c[n - k] if 0 <= k <= n else Fraction(0)
+
+        matrix = [[a(n - (2 * (j + 1) - (i + 1))) for j in range(order)] for i in range(order)]
+        values.append(_determinant(matrix))
+    # Newton divided differences -> power basis
+    coef = list(values)
+    for level in range(1, len(nodes)):
+        for i in range(len(nodes) - 1, level - 1, -1):
+            coef[i] = (coef[i] - coef[i - 1]) / (nodes[i] - nodes[i - level])
+    poly = [Fraction(0)] * len(nodes)
+    for i in range(len(nodes) - 1, -1, -1):
+        # poly = poly * (x - nodes[i]) + coef[i]
+        shifted = [Fraction(0)] + poly[:-1]
+        poly = [shifted[k] - nodes[i] * poly[k] for k in range(len(poly))]
+        poly[0] += coef[i]
+    return poly
+
+
+def _positive_on_unit_interval(ascending: Sequence[Fraction]) -> bool:
+    """Sufficient test: all Bernstein coefficients on [0, 1] of one sign (and non-zero)
+    means no root in [0, 1] (Bernstein basis enclosure; Farouki & Rajan, "On the numerical
+    condition of polynomials in Bernstein form", 1987)."""
+    d = len(ascending) - 1
+    while d > 0 and ascending[d] == 0:
+        d -= 1
+    if d == 0:
+        return ascending[0] != 0
+    from math import comb
+
+    bern = [sum(Fraction(comb(j, i), comb(d, i)) * ascending[i] for i in range(j + 1)) for j in range(d + 1)]
+    return all(b > 0 for b in bern) or all(b < 0 for b in bern)
 
 
 def _combine(p0: Sequence[Fraction], p1: Sequence[Fraction], lam: Fraction) -> list[Fraction]:

@@ -12,6 +12,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
 
+import numpy as np
 import sympy as sp
 
 from .errors import InputError
@@ -123,6 +124,8 @@ class UncertainPolynomial:
     nominal: tuple[Fraction, ...]
     rational: bool = False
     cleared: str = ""
+    factors: tuple[MultiPoly, ...] = ()
+    _float_form: list = field(default_factory=list, repr=False, compare=False)
     _derivatives: tuple[tuple[MultiPoly, ...], ...] = field(default=(), repr=False, compare=False)
 
     @property
@@ -154,18 +157,54 @@ class UncertainPolynomial:
     def with_box(self, box: Box) -> UncertainPolynomial:
         """The same polynomial over another box (derivatives kept)."""
         return UncertainPolynomial(self.names, self.coefficients, box, self.nominal,
-                                   self.rational, self.cleared, self.derivatives())
+                                   self.rational, self.cleared, self.factors,
+                                   _float_form=self._float_form, _derivatives=self.derivatives())
+
+    def with_coefficients(self, coefficients: Sequence[MultiPoly]) -> UncertainPolynomial:
+        """Another polynomial over the same parameters and box (e.g. a shifted one)."""
+        fresh = UncertainPolynomial(self.names, tuple(coefficients), self.box, self.nominal,
+                                    self.rational, self.cleared, self.factors)
+        return fresh.with_box(self.box)
+
+    def valid_on(self, box: Box) -> bool:
+        """Whether every cleared denominator and common factor keeps one sign over ``box``
+        (outside such a box the cleared polynomial no longer stands for the loop)."""
+        return all(_sign_over_box(f, box) != 0 for f in self.factors)
 
     def bounds(self, box: Box | None = None) -> tuple[Bound, ...]:
         """Range of each coefficient over the box (exact where monotone/multilinear, else outer)."""
+        return self.bounds_and_directions(box)[0]
+
+    def bounds_and_directions(self, box: Box | None = None
+                              ) -> tuple[tuple[Bound, ...], tuple[tuple[int | None, ...], ...]]:
+        """:meth:`bounds` and :meth:`directions` from one pass over the coefficients."""
         box = box or self.box
         intervals = as_intervals(box.intervals)
-        out = []
+        out, signs = [], []
         for coeff, derivs in zip(self.coefficients, self.derivatives(), strict=True):
-            (lo, hi), exact = coeff.bound(intervals, derivs)
+            (lo, hi), exact, sign = coeff.bound_and_signs(intervals, derivs)
             out.append(Bound(Fraction(int(lo.numerator), int(lo.denominator)),
                              Fraction(int(hi.numerator), int(hi.denominator)), exact))
-        return tuple(out)
+            signs.append(sign)
+        return tuple(out), tuple(signs)
+
+    def coefficients_float(self, points: np.ndarray) -> np.ndarray:
+        """Float coefficients a_n .. a_0 at many points (rows): screening only, never verdicts."""
+        if not self._float_form:
+            exps = sorted({e for c in self.coefficients for e, _ in c.terms})
+            index = {e: j for j, e in enumerate(exps)}
+            weights = np.zeros((len(self.coefficients), len(exps)))
+            for k, c in enumerate(self.coefficients):
+                for e, v in c.terms:
+                    weights[k, index[e]] = float(v)
+            self._float_form.extend([np.array(exps, dtype=float).reshape(len(exps), -1), weights])
+        exps, weights = self._float_form
+        points = np.asarray(points, dtype=float)
+        if exps.shape[1] == 0:
+            monomials = np.ones((points.shape[0], exps.shape[0]))
+        else:
+            monomials = np.prod(points[:, None, :] ** exps[None, :, :], axis=2)
+        return monomials @ weights.T
 
     def directions(self, box: Box | None = None) -> tuple[tuple[int | None, ...], ...]:
         """Sign of each partial derivative over the box: ``[k][i]`` in {+1, -1, 0, None=mixed}."""
@@ -274,8 +313,10 @@ def build_family(
     if denominator.free_symbols:
         rational = True
         cleared.append(denominator)
+    factor_polys = []
     for factor in cleared:
         mp = _to_multipoly(sp.expand(factor), symbols)
+        factor_polys.append(mp)
         if _sign_over_box(mp, box) == 0:
             raise InputError(
                 where,
@@ -293,6 +334,7 @@ def build_family(
         nominal=tuple(nominal),
         rational=rational,
         cleared=" * ".join(sp.sstr(f) for f in cleared),
+        factors=tuple(factor_polys),
     ).with_box(box)
 
 

@@ -153,6 +153,18 @@ class MultiPoly:
             out += term
         return out
 
+    @staticmethod
+    def linear_combination(nvars: int, polys: Sequence[MultiPoly], weights: Sequence[object]) -> MultiPoly:
+        """sum of weights[i] * polys[i] (weights exact rationals)."""
+        out: dict[tuple[int, ...], object] = {}
+        for poly, weight in zip(polys, weights, strict=True):
+            w = _q(weight)
+            if w == 0:
+                continue
+            for e, c in poly.terms:
+                out[e] = out.get(e, mpq(0)) + w * c
+        return MultiPoly.from_mapping(nvars, out)
+
     def substitute(self, values: Mapping[int, object]) -> MultiPoly:
         """Fix some parameters at exact values (the others stay)."""
         out: dict[tuple[int, ...], object] = {}
@@ -209,8 +221,14 @@ class MultiPoly:
         (exact); the rest are enumerated over their vertices when the polynomial is
         multilinear in them (exact), else bounded by interval arithmetic (outer).
         """
+        interval, exact, _ = self.bound_and_signs(box, derivatives, max_vertices)
+        return interval, exact
+
+    def bound_and_signs(self, box: Sequence[Interval], derivatives: Sequence[MultiPoly] | None = None,
+                        max_vertices: int = 4096) -> tuple[Interval, bool, tuple[int | None, ...]]:
+        """:meth:`bound` together with the :meth:`derivative_signs` it used."""
         if not self.terms:
-            return (mpq(0), mpq(0)), True
+            return (mpq(0), mpq(0)), True, (0,) * self.nvars
         signs = self.derivative_signs(box, derivatives)
         mixed = [i for i, s in enumerate(signs) if s is None]
         ends = []
@@ -225,7 +243,7 @@ class MultiPoly:
             ends.append(self.substitute(fixed) if fixed else self)
         if not mixed:
             return (ends[0]._evaluate_q([b[0] for b in box]),
-                    ends[1]._evaluate_q([b[0] for b in box])), True
+                    ends[1]._evaluate_q([b[0] for b in box])), True, signs
         multilinear_in_mixed = all(e[i] <= 1 for e, _ in self.terms for i in mixed)
         if multilinear_in_mixed and 2 ** len(mixed) <= max_vertices:
             values_low, values_high = [], []
@@ -235,8 +253,8 @@ class MultiPoly:
                     point[i] = v
                 values_low.append(ends[0]._evaluate_q(point))
                 values_high.append(ends[1]._evaluate_q(point))
-            return (min(values_low), max(values_high)), True
-        return (ends[0].outer_interval(box)[0], ends[1].outer_interval(box)[1]), False
+            return (min(values_low), max(values_high)), True, signs
+        return (ends[0].outer_interval(box)[0], ends[1].outer_interval(box)[1]), False, signs
 
     def attaining_point(self, box: Sequence[Interval], high: bool,
                         derivatives: Sequence[MultiPoly] | None = None,

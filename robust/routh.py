@@ -50,6 +50,7 @@ __all__ = [
 ]
 
 EPSILON = sp.Symbol("ε", positive=True)
+_S = sp.Symbol("s")
 Entry = Fraction | sp.Expr
 
 
@@ -138,6 +139,9 @@ class RouthTable:
     _integer_rows: tuple[tuple[int, ...], ...] | None  # fraction-free rows (gmpy2 integers)
     _scales: Fraction | None  # the integer polynomial is this multiple of `coefficients`
     _exact_rows: tuple[tuple[Entry, ...], ...] | None
+    #: True when ``roots`` comes from p = q * gcd(p(s), p(-s)) because an ε row met a root
+    #: pair r, -r; the first column of this table then need not show the counts.
+    counted_by_factors: bool = False
 
     @property
     def degree(self) -> int:
@@ -187,6 +191,7 @@ class RouthTable:
             "roots": self.roots.as_dict(),
             "special_rows": [s.as_dict() for s in self.special_rows],
             "hurwitz": self.is_hurwitz,
+            "counted_by_factors": self.counted_by_factors,
         }
 
 
@@ -323,7 +328,9 @@ def is_hurwitz(coefficients: Sequence[Fraction | int]) -> bool:
     Stops at the first non-positive first-column entry (after normalising the sign of the
     leading coefficient); no table is kept.
     """
-    coeffs = [c if isinstance(c, Fraction) else Fraction(c) for c in coefficients]
+    # to_fraction, as in routh_table: a float is its decimal repr (0.1 -> 1/10), not its binary value
+    coeffs = [c if isinstance(c, Fraction) else to_fraction(c, f"coefficient {i}")
+              for i, c in enumerate(coefficients)]
     while coeffs and coeffs[0] == 0:
         coeffs.pop(0)
     if not coeffs:
@@ -450,6 +457,26 @@ def routh_table(poly_or_coeffs: object, shift: object = 0, variable: str = "s") 
             _scales=Fraction(ints[0]) / coeffs[0],
             _exact_rows=None,
         )
+    rows, special, signs, roots = _tabulate(coeffs)
+    by_factors = None
+    if any(s.kind == "zero_leading" for s in special):
+        by_factors = _counts_by_factors(coeffs)
+    return RouthTable(
+        coefficients=coeffs,
+        shift=sigma,
+        special_rows=tuple(special),
+        first_column_signs=signs,
+        roots=by_factors or roots,
+        _integer_rows=None,
+        _scales=None,
+        _exact_rows=tuple(tuple(row) for row in rows),
+        counted_by_factors=by_factors is not None,
+    )
+
+
+def _tabulate(coeffs: Sequence[Fraction]):
+    """The general (special-case) table: rows, special rows, first-column signs, counts."""
+    n = len(coeffs) - 1
     rows, special, first_aux = _general_rows(coeffs)
     signs = tuple(_sign_at_zero_plus(row[0]) for row in rows)
     changes = _count_changes(signs)
@@ -457,13 +484,31 @@ def routh_table(poly_or_coeffs: object, shift: object = 0, variable: str = "s") 
     if first_aux >= 0:
         aux_degree = n - first_aux
         imaginary = aux_degree - 2 * _count_changes(signs[first_aux:])
-    return RouthTable(
-        coefficients=coeffs,
-        shift=sigma,
-        special_rows=tuple(special),
-        first_column_signs=signs,
-        roots=RootCounts(changes, imaginary, n - changes - imaginary),
-        _integer_rows=None,
-        _scales=None,
-        _exact_rows=tuple(tuple(row) for row in rows),
-    )
+    return rows, special, signs, RootCounts(changes, imaginary, n - changes - imaginary)
+
+
+def _counts_by_factors(coeffs: Sequence[Fraction]) -> RootCounts | None:
+    """Counts via p = q * g, g = gcd(p(s), p(-s)), when the ε rule alone is not sound.
+
+    The ε rule is a perturbation argument: it keeps the counts only when no root pair
+    r, -r (imaginary-axis roots in particular) exists (Gantmacher, 1959, ch. XV). When an ε
+    row meets such a pair (before its zero row, or inside a repeated auxiliary polynomial),
+    the pairs are split off: q has none, so its table needs at most the ε rule; each
+    square-free factor of g is even or odd, so its table starts with a zero row and then
+    is that of g_i + g_i', which has no such pair either. None when g is constant.
+    """
+    p = sp.Poly([sp.Rational(c.numerator, c.denominator) for c in coeffs], _S, domain=sp.QQ)
+    g = sp.gcd(p, p.compose(sp.Poly(-_S, _S, domain=sp.QQ)))
+    if g.degree() <= 0:
+        return None
+    parts = [(sp.quo(p, g), 1)] + list(g.sqf_list()[1])
+    right = axis = left = 0
+    for factor, multiplicity in parts:
+        if factor.degree() <= 0:
+            continue
+        part = [Fraction(int(c.p), int(c.q)) for c in factor.all_coeffs()]
+        counts = _tabulate(part)[3]
+        right += multiplicity * counts.open_right
+        axis += multiplicity * counts.imaginary_axis
+        left += multiplicity * counts.open_left
+    return RootCounts(right, axis, left)

@@ -65,7 +65,7 @@ def _to_point(t: np.ndarray, box: Box) -> tuple[Fraction, ...]:
 
 
 def _coefficients_many(family: UncertainPolynomial, points: np.ndarray) -> np.ndarray:
-    return np.stack([c.evaluate_many(points) for c in family.coefficients], axis=1)
+    return family.coefficients_float(points)
 
 
 def search_witness(

@@ -168,3 +168,83 @@ def render_trace(case, graph) -> str:
     lines.append("Directions: + the coefficient grows with the parameter over the whole box, "
                  "- it falls, mixed: both.")
     return "\n".join(lines)
+
+
+def _bracket_text(b) -> str:
+    upper = "no witness up to the cap" if b.upper is None else f"{float(b.upper):.9g}"
+    text = f"[{float(b.lower):.9g}, {upper}]"
+    if b.exact:
+        text += f"   exact: {b.exact}" + (f" = {b.decimal}" if b.decimal else "")
+    if b.note:
+        text += f"   ({b.note})"
+    return text
+
+
+def _pass_text(passed) -> str:
+    return {True: "PASS", False: "FAIL", None: "UNDECIDED"}[passed]
+
+
+def render_margin(case, result) -> str:
+    """``robust margin`` for people."""
+    m = result.margin
+    lines = [f"Case: {case.title}   [{case.path}]",
+             f"Robust margin rho* (scale of every tolerance about nominal): {_bracket_text(m)}",
+             f"  method: {result.method}"]
+    if m.upper is None:
+        lines.append(f"  stable with every tolerance scaled by at least {float(m.lower):.6g}")
+    elif m.lower >= 1:
+        lines.append(f"  the design passes with headroom: tolerances can grow by {float(m.lower - 1):.3%}")
+    else:
+        lines.append(f"  the design fails: tolerances must shrink to {float(m.lower):.3%} of their width")
+    if m.witness is not None:
+        pts = ", ".join(f"{n} = {float(v):.6g}" for n, v in m.witness.parameters.items())
+        lines.append(f"  witness just beyond the margin: {pts}")
+    if result.requirement is not None:
+        lines.append(f"Requirement margin >= {float(result.requirement):g}: {_pass_text(result.passed)}")
+    if result.decay is not None:
+        d = result.decay
+        lines.append(f"Decay-rate margin sigma* (every root has Re(s) < -sigma): {_bracket_text(d.bracket)}")
+        settle = d.settling_time()
+        if settle is not None:
+            lines.append(f"  worst-case 2 % settling time about 4/sigma = {settle:.4g} s (common rule of thumb)")
+        if d.requirement is not None:
+            lines.append(f"Requirement decay_rate >= {float(d.requirement):g}: {_pass_text(d.passed)}")
+    lines.append(f"Time: {result.seconds:.2f} s")
+    return "\n".join(lines)
+
+
+def render_rank(case, result) -> str:
+    """``robust rank`` for people."""
+    lines = [f"Case: {case.title}   [{case.path}]",
+             "Parameters, most critical first (margins are scales of that tolerance):",
+             f"{'parameter':<12} {'tolerance':<10} {'alone':>12} {'others full':>12}  acts through"]
+    for p in result.parameters:
+        alone = f"{float(p.margin_alone.lower):.6g}" + ("+" if p.margin_alone.upper is None else "")
+        given = f"{float(p.margin_given_others.lower):.6g}" + ("+" if p.margin_given_others.upper is None else "")
+        acts = ", ".join(f"a{power}({d})" for power, d in p.coefficients)
+        lines.append(f"{p.name:<12} {p.tolerance:<10} {alone:>12} {given:>12}  {acts}")
+    if result.robustly_stable is False:
+        lines.append("")
+        lines.append("The design is not robustly stable. Tightening one tolerance alone (others as given):")
+        for p in result.parameters:
+            if p.restores:
+                lines.append(f"  {p.name}: scale its tolerance to at most {float(p.tightened):.4g} x the present one")
+            elif p.restores is False:
+                lines.append(f"  {p.name}: no tightening of this part alone restores stability")
+    lines.append("(+ : stable up to the cap; 'alone': others at nominal; 'others full': others over their range)")
+    return "\n".join(lines)
+
+
+def render_yield(case, result) -> str:
+    """``robust yield`` for people."""
+    lo, hi = result.interval
+    lines = [f"Case: {case.title}   [{case.path}]",
+             f"Yield: {result.stable}/{result.draws} random builds stable = {result.fraction:.4%} "
+             f"({result.confidence:.0%} interval {lo:.4%} .. {hi:.4%}, Clopper-Pearson), seed {result.seed}",
+             f"  exact re-checks of unclear float decisions: {result.exact_rechecks}"]
+    if result.unstable_ranges:
+        lines.append("  parameter ranges of the unstable draws:")
+        for name, a, b in result.unstable_ranges:
+            lines.append(f"    {name}: {a:.6g} .. {b:.6g}")
+    lines.append("A yield estimate is no proof: use `robust check` for the worst case.")
+    return "\n".join(lines)

@@ -249,8 +249,11 @@ def _inside(family: UncertainPolynomial, box: Box) -> tuple[Fraction, ...]:
     return box.center
 
 
-def _split_index(family: UncertainPolynomial, box: Box) -> int:
-    """The parameter whose width most widens the coefficient intervals (relative)."""
+def _split_index(family: UncertainPolynomial, box: Box, kh: KharitonovResult | None = None,
+                 directions: Sequence[Sequence[int | None]] | None = None) -> int:
+    """The parameter to split: among those the failing Kharitonov vertex asks for both ends
+    of their range (or whose direction is mixed) - the source of the overbound's
+    conservatism - the one whose width most widens the coefficient intervals (relative)."""
     center = [float(x) for x in box.center]
     widths = [float(w) for w in box.widths()]
     values = [abs(c.evaluate_float(center)) for c in family.coefficients]
@@ -262,9 +265,20 @@ def _split_index(family: UncertainPolynomial, box: Box) -> int:
                 slope = abs(d.evaluate_float(center))
                 # a second-order term keeps a parameter with zero slope at the centre in play
                 scores[i] += (slope * widths[i] + 1e-12 * widths[i]) / scale
-    best = max(range(len(scores)), key=lambda i: (scores[i], widths[i]))
-    if widths[best] == 0:
-        best = max(range(len(widths)), key=lambda i: widths[i])
+    conflicted = set()
+    if kh is not None and kh.failing and directions is not None:
+        pattern = kh.family.pattern(kh.failing[0])
+        asked: dict[int, set[str]] = {}
+        for k, end in enumerate(pattern):
+            for i in family.coefficients[k].variables():
+                d = directions[k][i]
+                if d is None:
+                    conflicted.add(i)
+                elif d:
+                    asked.setdefault(i, set()).add("high" if (end == "high") == (d > 0) else "low")
+        conflicted |= {i for i, ends in asked.items() if len(ends) > 1}
+    candidates = [i for i in conflicted if widths[i] > 0] or [i for i in range(len(widths)) if widths[i] > 0]
+    best = max(candidates, key=lambda i: (scores[i], widths[i]))
     return best
 
 
@@ -388,7 +402,8 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
         neg_vol, _, sub, depth = heapq.heappop(heap)
         budget.boxes += 1
         max_depth = max(max_depth, depth)
-        kh = kharitonov_test(_interval(family, sub))
+        bounds, directions = family.bounds_and_directions(sub)
+        kh = kharitonov_test(IntervalPolynomial(tuple(b.low for b in bounds), tuple(b.high for b in bounds)))
         if kh.stable:
             proven_volume += -neg_vol
             proven += 1
@@ -405,7 +420,7 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
             if w is not None:
                 return result("unstable", "subdivision", w, reason=f"{w.found_by}: not Hurwitz",
                               proven=proven, depth=max_depth)
-            i = _split_index(family, sub)
+            i = _split_index(family, sub, kh, directions)
             for half in sub.split(i):
                 vol = half.relative_volume(box)
                 heapq.heappush(heap, (-vol, counter, half, depth + 1))
