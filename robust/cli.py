@@ -133,15 +133,24 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
     from .textout import render_check
     from .verdict import check
 
+    from .margin import check_requirements
+    from .textout import render_requirements
+
     loaded = load_case(case)
     report, finish = _progress_printer("check")
     result = check(loaded, max_seconds=max_seconds, max_boxes=max_boxes, progress=report)
     finish()
+    requirements = check_requirements(loaded, max_seconds=max_seconds / 2, max_boxes=max_boxes) \
+        if result.verdict == "stable" else ()
     if as_json:
-        _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
+        _emit_json({"case": case, "title": loaded.title, **result.as_dict(),
+                    "requirements": {r.name: r.as_dict() for r in requirements}})
     else:
         click.echo(render_check(loaded, result))
-    sys.exit(0 if result.verdict == "stable" else 1)
+        if requirements:
+            click.echo(render_requirements(requirements))
+    failed = any(r.passed is not True for r in requirements)
+    sys.exit(0 if result.verdict == "stable" and not failed else 1)
 
 
 @main.command("trace")

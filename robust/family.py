@@ -175,14 +175,18 @@ class UncertainPolynomial:
         """Range of each coefficient over the box (exact where monotone/multilinear, else outer)."""
         return self.bounds_and_directions(box)[0]
 
-    def bounds_and_directions(self, box: Box | None = None
+    def bounds_and_directions(self, box: Box | None = None, known: Sequence | None = None
                               ) -> tuple[tuple[Bound, ...], tuple[tuple[int | None, ...], ...]]:
-        """:meth:`bounds` and :meth:`directions` from one pass over the coefficients."""
+        """:meth:`bounds` and :meth:`directions` from one pass over the coefficients.
+
+        ``known``: the directions over a box that contains ``box`` (definite ones are kept).
+        """
         box = box or self.box
         intervals = as_intervals(box.intervals)
         out, signs = [], []
-        for coeff, derivs in zip(self.coefficients, self.derivatives(), strict=True):
-            (lo, hi), exact, sign = coeff.bound_and_signs(intervals, derivs)
+        for k, (coeff, derivs) in enumerate(zip(self.coefficients, self.derivatives(), strict=True)):
+            (lo, hi), exact, sign = coeff.bound_and_signs(intervals, derivs,
+                                                          known=known[k] if known else None)
             out.append(Bound(Fraction(int(lo.numerator), int(lo.denominator)),
                              Fraction(int(hi.numerator), int(hi.denominator)), exact))
             signs.append(sign)

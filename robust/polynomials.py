@@ -23,6 +23,8 @@ import numpy as np
 
 __all__ = ["Bound", "MultiPoly", "interval_power"]
 
+_VARIABLES: dict[tuple, frozenset[int]] = {}  # terms -> variables used (terms are immutable)
+
 mpq = gmpy2.mpq
 Interval = tuple  # (low, high) of mpq
 
@@ -92,7 +94,13 @@ class MultiPoly:
 
     def variables(self) -> frozenset[int]:
         """Indices of the parameters that appear."""
-        return frozenset(i for e, _ in self.terms for i, k in enumerate(e) if k)
+        cached = _VARIABLES.get(self.terms)
+        if cached is None:
+            cached = frozenset(i for e, _ in self.terms for i, k in enumerate(e) if k)
+            if len(_VARIABLES) > 100_000:
+                _VARIABLES.clear()
+            _VARIABLES[self.terms] = cached
+        return cached
 
     def total_degree(self) -> int:
         """Largest total degree of a term (0 for constants and zero)."""
@@ -196,17 +204,22 @@ class MultiPoly:
             high += th
         return low, high
 
-    def derivative_signs(self, box: Sequence[Interval], derivatives: Sequence[MultiPoly] | None = None
-                         ) -> tuple[int | None, ...]:
+    def derivative_signs(self, box: Sequence[Interval], derivatives: Sequence[MultiPoly] | None = None,
+                         known: Sequence[int | None] | None = None) -> tuple[int | None, ...]:
         """Per parameter: +1 (nondecreasing), -1 (nonincreasing), 0 (absent), None (mixed).
 
         Sound: decided from an outer bound of each partial derivative over the box.
+        ``known`` holds the signs over a box containing this one: a definite sign there
+        stays definite here, so only the mixed ones are recomputed.
         """
         used = self.variables()
         signs: list[int | None] = []
         for i in range(self.nvars):
             if i not in used or box[i][0] == box[i][1]:
                 signs.append(0)
+                continue
+            if known is not None and known[i] is not None and known[i] != 0:
+                signs.append(known[i])
                 continue
             d = derivatives[i] if derivatives is not None else self.derivative(i)
             lo, hi = d.outer_interval(box)
@@ -225,12 +238,17 @@ class MultiPoly:
         return interval, exact
 
     def bound_and_signs(self, box: Sequence[Interval], derivatives: Sequence[MultiPoly] | None = None,
-                        max_vertices: int = 4096) -> tuple[Interval, bool, tuple[int | None, ...]]:
+                        max_vertices: int = 4096, known: Sequence[int | None] | None = None
+                        ) -> tuple[Interval, bool, tuple[int | None, ...]]:
         """:meth:`bound` together with the :meth:`derivative_signs` it used."""
         if not self.terms:
             return (mpq(0), mpq(0)), True, (0,) * self.nvars
-        signs = self.derivative_signs(box, derivatives)
+        signs = self.derivative_signs(box, derivatives, known)
         mixed = [i for i, s in enumerate(signs) if s is None]
+        if not mixed:  # monotone in every parameter: the two corners, directly
+            low_point = [hi if s and s < 0 else lo for (lo, hi), s in zip(box, signs, strict=True)]
+            high_point = [hi if s and s > 0 else lo for (lo, hi), s in zip(box, signs, strict=True)]
+            return (self._evaluate_q(low_point), self._evaluate_q(high_point)), True, signs
         ends = []
         for want_high in (False, True):
             fixed = {}

@@ -60,6 +60,10 @@ def render_table(table: RouthTable) -> str:
         lines.append("note: " + special.describe())
     signs = "".join("+" if s > 0 else "-" for s in table.first_column_signs)
     lines.append(f"first-column signs: {signs}   sign changes: {table.sign_changes}")
+    if table.counted_by_factors:
+        lines.append("note: an ε row met roots symmetric about the origin, where the ε rule "
+                     "alone is unsound; the counts below come from p = q*g, "
+                     "g = gcd(p(s), p(-s)), each factor tabulated on its own")
     lines.append(roots_sentence(table))
     return "\n".join(lines)
 
@@ -248,3 +252,11 @@ def render_yield(case, result) -> str:
             lines.append(f"    {name}: {a:.6g} .. {b:.6g}")
     lines.append("A yield estimate is no proof: use `robust check` for the worst case.")
     return "\n".join(lines)
+
+
+def render_requirements(requirements) -> str:
+    """Pass/fail lines for the case's requirements."""
+    words = {"margin": "margin (stable with every tolerance scaled by {v:g})",
+             "decay_rate": "decay rate (every root has Re(s) < -{v:g})"}
+    return "\n".join(f"Requirement {words[r.name].format(v=float(r.required))}: {_pass_text(r.passed)}"
+                     for r in requirements)

@@ -389,7 +389,7 @@ def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
 
 
 def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, result, seed: int):
-    heap: list[tuple[Fraction, int, Box, int]] = [(-Fraction(1), 0, box, 0)]
+    heap: list[tuple[Fraction, int, Box, int, object]] = [(-Fraction(1), 0, box, 0, None)]
     counter = 1
     proven_volume = Fraction(0)
     proven = 0
@@ -399,10 +399,10 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
     while heap:
         if budget.exhausted():
             break
-        neg_vol, _, sub, depth = heapq.heappop(heap)
+        neg_vol, _, sub, depth, known = heapq.heappop(heap)
         budget.boxes += 1
         max_depth = max(max_depth, depth)
-        bounds, directions = family.bounds_and_directions(sub)
+        bounds, directions = family.bounds_and_directions(sub, known)
         kh = kharitonov_test(IntervalPolynomial(tuple(b.low for b in bounds), tuple(b.high for b in bounds)))
         if kh.stable:
             proven_volume += -neg_vol
@@ -423,7 +423,7 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
             i = _split_index(family, sub, kh, directions)
             for half in sub.split(i):
                 vol = half.relative_volume(box)
-                heapq.heappush(heap, (-vol, counter, half, depth + 1))
+                heapq.heappush(heap, (-vol, counter, half, depth + 1, directions))
                 counter += 1
         now = time.perf_counter()
         if progress is not None and now - last_report > 0.5:
