@@ -36,7 +36,7 @@ from .family import Box, UncertainPolynomial
 from .interval import IntervalPolynomial, KharitonovResult, KharitonovVertex, kharitonov_test
 from .polynomials import as_intervals
 from .routh import RootCounts, is_hurwitz, routh_table
-from .search import search_witness
+from .search import search_witness, worst_root_angle
 
 __all__ = [
     "DEFAULT_MAX_BOXES",
@@ -256,15 +256,6 @@ def _split_index(family: UncertainPolynomial, box: Box, kh: KharitonovResult | N
     conservatism - the one whose width most widens the coefficient intervals (relative)."""
     center = [float(x) for x in box.center]
     widths = [float(w) for w in box.widths()]
-    values = [abs(c.evaluate_float(center)) for c in family.coefficients]
-    scores = [0.0] * len(center)
-    for k, derivs in enumerate(family.derivatives()):
-        scale = values[k] or max(values) or 1.0
-        for i, d in enumerate(derivs):
-            if widths[i] and not d.is_zero:
-                slope = abs(d.evaluate_float(center))
-                # a second-order term keeps a parameter with zero slope at the centre in play
-                scores[i] += (slope * widths[i] + 1e-12 * widths[i]) / scale
     conflicted = set()
     if kh is not None and kh.failing and directions is not None:
         pattern = kh.family.pattern(kh.failing[0])
@@ -278,8 +269,18 @@ def _split_index(family: UncertainPolynomial, box: Box, kh: KharitonovResult | N
                     asked.setdefault(i, set()).add("high" if (end == "high") == (d > 0) else "low")
         conflicted |= {i for i, ends in asked.items() if len(ends) > 1}
     candidates = [i for i in conflicted if widths[i] > 0] or [i for i in range(len(widths)) if widths[i] > 0]
-    best = max(candidates, key=lambda i: (scores[i], widths[i]))
-    return best
+    if len(candidates) == 1:
+        return candidates[0]
+    values = [abs(c.evaluate_float(center)) for c in family.coefficients]
+    scores = dict.fromkeys(candidates, 0.0)
+    for k, derivs in enumerate(family.derivatives()):
+        scale = values[k] or max(values) or 1.0
+        for i in candidates:
+            if not derivs[i].is_zero:
+                slope = abs(derivs[i].evaluate_float(center))
+                # a second-order term keeps a parameter with zero slope at the centre in play
+                scores[i] += (slope * widths[i] + 1e-12 * widths[i]) / scale
+    return max(candidates, key=lambda i: (scores[i], widths[i]))
 
 
 def decide(
@@ -408,7 +409,11 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
             proven_volume += -neg_vol
             proven += 1
         else:
-            w = _make_witness(family, sub.center, "centre of a sub-box", box)
+            center = sub.center
+            w = None
+            if worst_root_angle(family.coefficients_float(
+                    np.array([[float(x) for x in center]]))[0]) > -1e-6:
+                w = _make_witness(family, center, "centre of a sub-box", box)
             if w is None and kh.reason in ("sign", "degree", "vertex"):
                 w = _realise_failure(family, sub, kh)
             if w is None and depth >= 4 and depth % 4 == 0 and depth not in searched_depths:
@@ -422,8 +427,8 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
                               proven=proven, depth=max_depth)
             i = _split_index(family, sub, kh, directions)
             for half in sub.split(i):
-                vol = half.relative_volume(box)
-                heapq.heappush(heap, (-vol, counter, half, depth + 1, directions))
+                # midpoint splits halve the volume exactly
+                heapq.heappush(heap, (neg_vol / 2, counter, half, depth + 1, directions))
                 counter += 1
         now = time.perf_counter()
         if progress is not None and now - last_report > 0.5:
