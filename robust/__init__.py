@@ -19,23 +19,39 @@ from __future__ import annotations
 
 __version__ = "0.1.0"
 
+from .case import Case as Case
+from .case import load_case as load_case
 from .errors import CaseError as CaseError
 from .errors import FormulaError as FormulaError
 from .errors import InputError as InputError
 from .errors import RobustError as RobustError
+from .margin import margin as margin
+from .montecarlo import estimate_yield as estimate_yield
+from .rank import rank as rank
 from .routh import RootCounts as RootCounts
 from .routh import RouthTable as RouthTable
 from .routh import is_hurwitz as is_hurwitz
 from .routh import routh_table as routh_table
+from .verdict import CheckResult as CheckResult
+from .verdict import Witness as Witness
+from .verdict import check as check
 
 __all__ = [
+    "Case",
     "CaseError",
+    "CheckResult",
     "FormulaError",
     "InputError",
     "RobustError",
     "RootCounts",
     "RouthTable",
+    "Witness",
     "__version__",
+    "check",
+    "estimate_yield",
     "is_hurwitz",
+    "load_case",
+    "margin",
+    "rank",
     "routh_table",
 ]

@@ -56,11 +56,6 @@ def hurwitz_matrix(coefficients: Sequence[sp.Expr], order: int) -> sp.Matrix:
     return sp.Matrix(order, order, lambda i, j: a(n - (2 * (j + 1) - (i + 1))))
 
 
-def _rational(x: sp.Expr) -> Fraction:
-    x = sp.nsimplify(x) if not x.is_Rational else x
-    return Fraction(int(x.p), int(x.q))
-
-
 def check_segment(p0: Sequence[Fraction], p1: Sequence[Fraction]) -> SegmentResult:
     """Decide exactly whether every convex combination of two polynomials is Hurwitz.
 

@@ -115,6 +115,8 @@ def search_witness(
         full[free] = np.clip(x, 0.0, 1.0)
         return -float(batch_worst_angle(_coefficients_many(family, (lo + full * width)[None, :]))[0])
 
+    if scores[order[0]] < -0.1:
+        return None  # every sample is far from the boundary: leave the rest to subdivision
     for idx in order[:local]:
         if time.perf_counter() > deadline:
             break

@@ -335,11 +335,19 @@ def decide(
         method = "kharitonov-vertex" if kh.reason == "vertex" else "coefficient-sign"
         return result("unstable", method, w, reason=f"{w.found_by}: not Hurwitz")
     if search:
-        found = search_witness(family, box, seed=seed, deadline=budget.start + max_seconds * 0.25)
+        found = search_witness(family, box, seed=seed, max_corners=64,
+                               deadline=budget.start + max_seconds * 0.25)
         if found is not None:
             w = _make_witness(family, found[0], found[1], box)
             if w is not None:
                 return result("unstable", "search", w, reason=f"{w.found_by}: not Hurwitz")
+    if kh.reason == "degree":
+        lead = family.bounds(box)[0]
+        if lead.exact and 0 in (lead.low, lead.high):
+            return result("undecided", "nominal", unresolved=Fraction(1), largest=box,
+                          reason="the leading coefficient reaches zero inside the box without "
+                          "changing sign: the degree drops there, so robust stability of a "
+                          "fixed-degree family cannot hold or be refuted by a rational witness")
     if family.structure == "affine" and kh.reason != "degree":
         edge_result = _check_edges(family, box, budget)
         if edge_result is not None:
