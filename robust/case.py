@@ -221,11 +221,12 @@ def _formula(reader: _Reader, section: str, key: str, text: object, names, varia
     if not isinstance(text, str | int | float) or isinstance(text, bool):
         raise reader.error(section, key, "a formula must be text", '"..."', text)
     try:
-        return parse_formula(str(text), names, variable, polynomial).expression
+        return parse_formula(str(text), names, variable, polynomial)
     except FormulaError as error:
         line = reader.line_of(section, key)
         raise CaseError(reader.path, f"{section}.{field}",
-                        f"{error.problem} at column {error.position} of {error.text!r}",
+                        f"{error.problem} at column {error.position} of "
+                        f"{error.text if len(error.text) <= 60 else error.text[:57] + '...'!r}",
                         error.expected, None, line) from None
 
 
@@ -289,7 +290,8 @@ def parse_case(text: str, path: str = "<case>") -> Case:
     s = sp.Symbol(variable)
     formulas: list[tuple[str, str]] = []
     if form == "expression":
-        expr = _formula(reader, "polynomial", "expression", poly["expression"], names, variable, True)
+        expr = _formula(reader, "polynomial", "expression", poly["expression"], names, variable,
+                        True).expression
         formulas.append(("expression", str(poly["expression"])))
     elif form == "coefficients":
         items = poly["coefficients"]
@@ -302,7 +304,7 @@ def parse_case(text: str, path: str = "<case>") -> Case:
         expr = sp.Integer(0)
         n = len(items) - 1
         for i, item in enumerate(items):
-            c = _formula(reader, "polynomial", "coefficients", item, names, None, False, i)
+            c = _formula(reader, "polynomial", "coefficients", item, names, None, False, i).expression
             expr += c * s ** (n - i)
             formulas.append((f"coefficients[{i}] (s^{n - i})", str(item)))
     else:
@@ -315,8 +317,10 @@ def parse_case(text: str, path: str = "<case>") -> Case:
                               names, variable, False)
         formulas.append(("plant", str(loop["plant"])))
         formulas.append(("controller", str(loop.get("controller", "1"))))
-        n_p, d_p = sp.fraction(sp.together(plant))
-        n_c, d_c = sp.fraction(sp.together(controller))
+        # numerators and denominators as written: a pole-zero cancellation inside a formula
+        # must not hide a mode of the loop
+        n_p, d_p = plant.numerator, plant.denominator
+        n_c, d_c = controller.numerator, controller.denominator
         expr = sp.expand(d_p * d_c + n_p * n_c)
         if expr == 0:
             raise reader.error("polynomial.loop", "plant",
@@ -350,7 +354,8 @@ def _requirements(reader: _Reader, table: object) -> Requirements:
             raise reader.error("requirements", key, "unknown requirement", "margin, decay_rate")
         value = _number(reader, "requirements", key, table[key])
         if value < 0 or (key == "margin" and value == 0):
-            raise reader.error("requirements", key, "must be positive", "a positive number", table[key])
+            expected = "a positive number" if key == "margin" else "a number >= 0"
+            raise reader.error("requirements", key, "out of range", expected, table[key])
         out[key] = value
     return Requirements(out.get("margin"), out.get("decay_rate"))
 

@@ -22,7 +22,7 @@ from fractions import Fraction
 
 import sympy as sp
 
-from .errors import FormulaError
+from .errors import FormulaError, InputError
 from .exact import parse_number
 
 __all__ = [
@@ -38,6 +38,7 @@ MAX_DEPTH = 60
 MAX_EXPONENT = 200
 MAX_DEGREE = 200
 _MAX_TERMS = 200_000
+_MAX_NUMBER_BITS = 20_000  # a power of a constant may not exceed this many bits
 
 _TOKEN = re.compile(
     r"\s*(?:(?P<number>(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)"
@@ -76,11 +77,16 @@ class ParsedFormula:
         The sympy expression built from the syntax tree.
     names
         The declared names the formula uses (the variable excluded), sorted.
+    numerator, denominator
+        The formula as one quotient exactly as written: common factors of the two are not
+        cancelled (the expression above may have them cancelled by sympy).
     """
 
     text: str
     expression: sp.Expr
     names: tuple[str, ...]
+    numerator: sp.Expr = sp.Integer(0)
+    denominator: sp.Expr = sp.Integer(1)
 
 
 def _tokenize(text: str) -> list[_Token]:
@@ -110,6 +116,39 @@ def _tokenize(text: str) -> list[_Token]:
         pos = match.end()
     tokens.append(_Token("end", "", len(text) + 1))
     return tokens
+
+
+class _Frac:
+    """A quotient kept as written: numerator and denominator are never cancelled against
+    each other, so a pole-zero cancellation inside a formula cannot hide a mode."""
+
+    __slots__ = ("den", "num")
+
+    def __init__(self, num: sp.Expr, den: sp.Expr = sp.Integer(1)):
+        self.num, self.den = num, den
+
+    def has(self, symbol: sp.Symbol) -> bool:
+        return self.num.has(symbol) or self.den.has(symbol)
+
+    def add(self, other: _Frac) -> _Frac:
+        if self.den == other.den:
+            return _Frac(self.num + other.num, self.den)
+        return _Frac(self.num * other.den + other.num * self.den, self.den * other.den)
+
+    def mul(self, other: _Frac) -> _Frac:
+        return _Frac(self.num * other.num, self.den * other.den)
+
+    def negate(self) -> _Frac:
+        return _Frac(-self.num, self.den)
+
+    def invert(self) -> _Frac:
+        return _Frac(self.den, self.num)
+
+    def power(self, k: int) -> _Frac:
+        return _Frac(self.num**k, self.den**k) if k >= 0 else _Frac(self.den**-k, self.num**-k)
+
+    def expression(self) -> sp.Expr:
+        return self.num if self.den == 1 else self.num / self.den
 
 
 class _Parser:
@@ -148,7 +187,7 @@ class _Parser:
             raise self.fail("formula nested too deeply", f"at most {MAX_DEPTH} levels")
 
     # -- grammar ---------------------------------------------------------------------------
-    def parse(self) -> tuple[sp.Expr, _Size]:
+    def parse(self) -> tuple[_Frac, _Size]:
         if self.token.kind == "end":
             raise self.fail("empty formula", "an expression")
         value = self.sum()
@@ -164,52 +203,52 @@ class _Parser:
             return self.fail("unbalanced ')'", "an operator or the end")
         return self.fail(f"unexpected {token.text!r}", "an operator or the end")
 
-    def sum(self) -> tuple[sp.Expr, _Size]:
+    def sum(self) -> tuple[_Frac, _Size]:
         value, size = self.product()
         while self.is_op("+", "-"):
             op = self.take()
             other, other_size = self.product()
-            value = value + other if op.text == "+" else value - other
+            value = value.add(other if op.text == "+" else other.negate())
             size = _add_sizes(size, other_size)
             self.check_size(size, op)
         return value, size
 
-    def product(self) -> tuple[sp.Expr, _Size]:
+    def product(self) -> tuple[_Frac, _Size]:
         value, size = self.unary()
         while self.is_op("*", "/"):
             op = self.take()
             other, other_size = self.unary()
             if op.text == "*":
-                value, size = value * other, _mul_sizes(size, other_size)
+                value, size = value.mul(other), _mul_sizes(size, other_size)
             else:
-                if other == 0:
+                if other.num == 0:
                     raise self.fail("division by zero", "a non-zero divisor", op)
                 if self.polynomial and self.variable and other.has(self.symbols[self.variable]):
                     raise self.fail(
                         f"division by an expression in {self.variable}",
                         f"a polynomial in {self.variable}", op,
                     )
-                value, size = value / other, _mul_sizes(size, other_size)
+                value, size = value.mul(other.invert()), _mul_sizes(size, other_size)
             self.check_size(size, op)
         return value, size
 
-    def unary(self) -> tuple[sp.Expr, _Size]:
+    def unary(self) -> tuple[_Frac, _Size]:
         if self.is_op("+", "-"):
             op = self.take()
             self.enter()
             value, size = self.unary()
             self.depth -= 1
-            return (-value if op.text == "-" else value), size
+            return (value.negate() if op.text == "-" else value), size
         return self.power()
 
-    def power(self) -> tuple[sp.Expr, _Size]:
+    def power(self) -> tuple[_Frac, _Size]:
         base, size = self.atom()
         if self.is_op("^", "**"):
             op = self.take()
             exponent = self.exponent()
             if self.is_op("^", "**"):
                 raise self.fail("exponent towers are not accepted", "one integer exponent")
-            if exponent < 0 and base == 0:
+            if exponent < 0 and base.num == 0:
                 raise self.fail("division by zero", "a non-zero base", op)
             if (
                 exponent < 0 and self.polynomial and self.variable
@@ -219,9 +258,14 @@ class _Parser:
                     f"negative power of an expression in {self.variable}",
                     f"a polynomial in {self.variable}", op,
                 )
+            if base.num.is_Rational and base.den.is_Rational and abs(exponent) * max(
+                int(base.num.p).bit_length(), int(base.num.q).bit_length(),
+                int(base.den.p).bit_length(), int(base.den.q).bit_length(),
+            ) > _MAX_NUMBER_BITS:  # ((9^200)^200)^200 would take minutes and all memory
+                raise self.fail("number too large", f"constants below 2^{_MAX_NUMBER_BITS}", op)
             size = _pow_size(size, abs(exponent))
             self.check_size(size, op)
-            return base**exponent, size
+            return base.power(exponent), size
         return base, size
 
     def exponent(self) -> int:
@@ -248,7 +292,7 @@ class _Parser:
             )
         return value
 
-    def atom(self) -> tuple[sp.Expr, _Size]:
+    def atom(self) -> tuple[_Frac, _Size]:
         token = self.token
         if token.kind == "number":
             self.take()
@@ -258,8 +302,11 @@ class _Parser:
                     "in parameter values, not in formulas; write '*' between factors)",
                     "an operator",
                 )
-            value = parse_number(token.text, "number", suffixes=False)
-            return sp.Rational(value.numerator, value.denominator), _Size((), 1)
+            try:
+                value = parse_number(token.text, "number", suffixes=False)
+            except InputError as error:  # e.g. 1e401: report it with its column, as the rest
+                raise self.fail(error.problem, error.expected, token) from None
+            return _Frac(sp.Rational(value.numerator, value.denominator)), _Size((), 1)
         if token.kind == "name":
             self.take()
             if self.is_op("("):
@@ -276,7 +323,7 @@ class _Parser:
                 raise self.fail(f"unknown name {token.text!r}", expected, token)
             if token.text != self.variable:
                 self.used.add(token.text)
-            return self.symbols[token.text], _Size(((token.text, 1),), 1)
+            return _Frac(self.symbols[token.text]), _Size(((token.text, 1),), 1)
         if self.is_op("("):
             self.take()
             self.enter()
@@ -368,8 +415,8 @@ def parse_formula(
         raise FormulaError(text, MAX_LENGTH, "formula too long", f"at most {MAX_LENGTH} characters")
     declared = frozenset(names)
     parser = _Parser(text, declared, variable, polynomial)
-    expression, _ = parser.parse()
-    return ParsedFormula(text, expression, tuple(sorted(parser.used)))
+    value, _ = parser.parse()
+    return ParsedFormula(text, value.expression(), tuple(sorted(parser.used)), value.num, value.den)
 
 
 def polynomial_coefficients(text: str, variable: str = "s") -> list[Fraction]:
