@@ -130,11 +130,9 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
     requirement failed; 2: bad input.
     """
     from .case import load_case
-    from .textout import render_check
-    from .verdict import check
-
     from .margin import check_requirements
-    from .textout import render_requirements
+    from .textout import render_check, render_requirements
+    from .verdict import check
 
     loaded = load_case(case)
     report, finish = _progress_printer("check")
@@ -217,7 +215,9 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
         _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
     else:
         click.echo(render_margin(loaded, result))
-    failed = result.passed is False or (result.decay is not None and result.decay.passed is False)
+    # a requirement that is not proven met (failed or undecided) fails the command, as in check
+    failed = (result.requirement is not None and result.passed is not True) or (
+        result.decay is not None and result.decay.requirement is not None and result.decay.passed is not True)
     sys.exit(1 if failed else 0)
 
 
@@ -268,3 +268,94 @@ def yield_command(case: str, draws: int, seed: int, as_json: bool) -> None:
         _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
     else:
         click.echo(render_yield(loaded, result))
+
+
+def _stage_printer(line: str) -> None:
+    click.echo(line, err=True)
+
+
+def _summary_lines(analysis, files) -> list[str]:
+    """The short summary ``robust report`` and ``robust demo`` print."""
+    from .report.content import outcome
+
+    check = analysis.check
+    m = analysis.margin
+    lines = [f"Case: {analysis.case.title}",
+             f"Verdict: {check.verdict.upper()}  ({check.method_text})"]
+
+    def bracket(b) -> str:
+        upper = "no failure found up to the cap" if b.upper is None else f"{float(b.upper):.6g}"
+        return f"[{float(b.lower):.6g}, {upper}]"
+
+    lines.append(f"Robust margin rho*: {bracket(m.margin)}")
+    if m.decay is not None:
+        lines.append(f"Decay rate sigma*: {bracket(m.decay.bracket)}")
+    if analysis.rank.parameters:
+        top = analysis.rank.parameters[0]
+        lines.append(f"Most critical parameter: {top.name} "
+                     f"(margin alone {float(top.margin_alone.lower):.4g})")
+    y = analysis.yield_result
+    lines.append(f"Yield: {y.fraction:.2%} of {y.draws} random builds stable")
+    lines.append(outcome(analysis)[1])
+    lines.append(f"Report: {files.html}")
+    return lines
+
+
+@main.command("report")
+@click.argument("case", type=_CASE)
+@click.option("-o", "--output", "directory", required=True, type=click.Path(path_type=str),
+              help="Directory for report.html, report.md, figures/ and result.json.")
+@click.option("--max-seconds", type=click.FloatRange(min=1.0), default=60.0, show_default=True,
+              help="Budget: seconds for check, margin and rank together.")
+@click.option("--draws", type=click.IntRange(min=1, max=10**7), default=20_000, show_default=True,
+              help="Monte Carlo draws for the yield.")
+@click.option("--seed", type=int, default=0, show_default=True, help="Random seed.")
+@click.option("--json", "as_json", is_flag=True, help="Print the result as one JSON document.")
+@_guarded
+def report_command(case: str, directory: str, max_seconds: float, draws: int, seed: int,
+                   as_json: bool) -> None:
+    """Write the sign-off report of CASE into a directory (HTML, Markdown, JSON).
+
+    Exit code 0 when the report was written, whatever it concludes; 2: bad input.
+    """
+    from .case import load_case
+    from .report import analyse, check_directory, result_data, write_report
+
+    check_directory(directory)
+    loaded = load_case(case)
+    analysis = analyse(loaded, max_seconds=max_seconds, yield_draws=draws, seed=seed,
+                       progress=_stage_printer)
+    files = write_report(analysis, directory, progress=_stage_printer)
+    if as_json:
+        _emit_json(result_data(analysis))
+    else:
+        click.echo("\n".join(_summary_lines(analysis, files)))
+
+
+@main.command("demo")
+@click.option("-o", "--output", "directory", default="robust-demo-report", show_default=True,
+              type=click.Path(path_type=str), help="Directory for the demo report.")
+@_guarded
+def demo_command(directory: str) -> None:
+    """Analyse the built-in demo case (a DC-motor servo) and write its report.
+
+    The case file is copied beside the report as case.toml, to read and re-run.
+    """
+    import dataclasses
+    from importlib import resources
+    from pathlib import Path
+
+    from .case import load_case
+    from .report import analyse, check_directory, write_report
+
+    source = resources.files("robust") / "data" / "demo.toml"
+    text = source.read_bytes()
+    target = check_directory(directory, {"case.toml": text})
+    with resources.as_file(source) as path:
+        loaded = load_case(path)
+    # the report names the copy beside it, which holds the same bytes (same SHA-256)
+    loaded = dataclasses.replace(loaded, path=str(Path(target) / "case.toml"))
+    analysis = analyse(loaded, max_seconds=20.0, yield_draws=20_000, seed=0, progress=_stage_printer)
+    files = write_report(analysis, target, extra_files={"case.toml": text}, progress=_stage_printer)
+    click.echo("\n".join(_summary_lines(analysis, files)))
+    click.echo(f"Re-run: robust report {Path(target) / 'case.toml'} -o DIR")

@@ -110,8 +110,10 @@ def rank(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float = 1
     --------
     >>> import robust
     >>> r = robust.rank(robust.load_case("cases/thermal_pi_affine.toml"), max_seconds=20)
-    >>> [p.name for p in r.parameters][:1]
-    ['Kd']
+    >>> sorted(p.name for p in r.parameters)
+    ['C', 'G', 'Kd']
+    >>> r.parameters[0].margin_alone.lower <= r.parameters[-1].margin_alone.lower
+    True
     """
     started = time.perf_counter()
     family: UncertainPolynomial = getattr(case_or_family, "family", case_or_family)

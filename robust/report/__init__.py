@@ -1,0 +1,43 @@
+"""The sign-off report: every analysis of a case, rendered for people and for programs.
+
+Architecture (imports flow downwards only):
+
+    writer        the report directory: refuses foreign directories, writes the files
+    html, markdown   renderers of the block tree (markup and escaping live only here)
+    content       what the report says, in order, as neutral blocks (blocks.py)
+    certificate   the verdict's evidence: Routh arrays, witness, undecided remainder
+    figures       the pictures (matplotlib, Agg canvas, imported lazily)
+    figdata       the numbers behind the pictures (value set, roots), numpy only
+    data          result.json: the other commands' JSON in one object
+    analysis      one run of check, requirements, margin, rank and yield under one budget
+    fmt, blocks   number formatting; the block types
+
+The package sits above every analysis module and below the command line; nothing in
+``robust`` outside ``cli`` imports it.
+"""
+
+from __future__ import annotations
+
+from .analysis import Analysis as Analysis
+from .analysis import Settings as Settings
+from .analysis import analyse as analyse
+from .data import result_data as result_data
+from .figdata import choose_omegas as choose_omegas
+from .figdata import sample_draws as sample_draws
+from .figdata import value_set_data as value_set_data
+from .writer import ReportFiles as ReportFiles
+from .writer import check_directory as check_directory
+from .writer import write_report as write_report
+
+__all__ = [
+    "Analysis",
+    "ReportFiles",
+    "Settings",
+    "analyse",
+    "check_directory",
+    "choose_omegas",
+    "result_data",
+    "sample_draws",
+    "value_set_data",
+    "write_report",
+]

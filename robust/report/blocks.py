@@ -1,0 +1,116 @@
+"""The report as a small tree of neutral blocks that the HTML and Markdown writers render.
+
+The content is decided once (:mod:`robust.report.content`); each writer only decides how
+a block looks. Text is plain: the writers escape it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["Badge", "Block", "Cell", "Code", "Document", "Figure", "Inline", "ItemList", "Num",
+           "Paragraph", "Preformatted", "Section", "Table"]
+
+
+@dataclass(frozen=True, slots=True)
+class Num:
+    """A number shown as ``text`` that stands for the machine value ``value`` in
+    result.json at ``key`` (HTML keeps both, as a ``<data>`` element)."""
+
+    text: str
+    value: object
+    key: str
+
+
+@dataclass(frozen=True, slots=True)
+class Code:
+    """Inline formula or identifier, shown in a fixed-width font."""
+
+    text: str
+
+
+@dataclass(frozen=True, slots=True)
+class Badge:
+    """A short outcome word: ``kind`` is "pass", "fail" or "open"."""
+
+    text: str
+    kind: str
+    key: str = ""
+    value: object = None
+
+
+Inline = str | Num | Code | Badge
+
+
+@dataclass(frozen=True, slots=True)
+class Paragraph:
+    """Running text; ``style`` is "", "lead", "note" or "outcome"."""
+
+    parts: tuple[Inline, ...]
+    style: str = ""
+
+
+@dataclass(frozen=True, slots=True)
+class Cell:
+    """A table cell. ``full`` is the exact text when ``text`` shortens it."""
+
+    parts: tuple[Inline, ...]
+    full: str | None = None
+    mono: bool = False
+    numeric: bool = False
+
+
+@dataclass(frozen=True, slots=True)
+class Table:
+    """Header and rows of cells; ``style`` "routh" marks a Routh array."""
+
+    header: tuple[str, ...]
+    rows: tuple[tuple[Cell, ...], ...]
+    caption: str = ""
+    style: str = ""
+
+
+@dataclass(frozen=True, slots=True)
+class Preformatted:
+    """Fixed-width text kept as written (formulas)."""
+
+    text: str
+
+
+@dataclass(frozen=True, slots=True)
+class ItemList:
+    """A bulleted list."""
+
+    items: tuple[tuple[Inline, ...], ...]
+
+
+@dataclass(frozen=True, slots=True)
+class Figure:
+    """A picture by its file stem, with a caption and a text alternative."""
+
+    name: str
+    caption: str
+    alt: str
+
+
+@dataclass(frozen=True, slots=True)
+class Section:
+    """A titled part; ``group`` lays its sub-sections side by side on screen; ``new_page``
+    starts it on a fresh printed page."""
+
+    title: str
+    blocks: tuple[Block, ...]
+    anchor: str = ""
+    new_page: bool = False
+    group: bool = False
+
+
+Block = Paragraph | Table | Preformatted | ItemList | Figure | Section
+
+
+@dataclass(frozen=True, slots=True)
+class Document:
+    """The whole report."""
+
+    title: str
+    sections: tuple[Section, ...]

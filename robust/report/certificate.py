@@ -1,0 +1,120 @@
+"""The verdict's evidence as blocks: the exact Routh arrays of the four Kharitonov
+polynomials of the coefficient overbound, the witness of an unstable design, and what is
+left of an undecided one."""
+
+from __future__ import annotations
+
+from ..interval import KharitonovVertex
+from ..routh import RouthTable
+from ..verdict import CheckResult, Witness
+from .blocks import Cell, Code, ItemList, Paragraph, Section, Table
+from .fmt import entry_cell, exact_cell, short
+
+__all__ = ["certificate_section", "undecided_blocks", "witness_section"]
+
+
+def _roots_words(counts) -> str:
+    return (f"{counts.open_right} in the open right half-plane, {counts.imaginary_axis} on the "
+            f"imaginary axis, {counts.open_left} in the open left half-plane")
+
+
+def routh_table_block(table: RouthTable, caption: str = "") -> Table:
+    """One exact Routh array: power down the left, entries exact (long ones shortened)."""
+    width = max(len(row.entries) for row in table.rows)
+    rows = []
+    for row in table.rows:
+        cells = [Cell((f"s^{row.power}",), mono=True)]
+        cells += [entry_cell(e) for e in row.entries]
+        cells += [Cell(("",))] * (width - len(row.entries))
+        rows.append(tuple(cells))
+    header = ("row", *(f"column {i + 1}" for i in range(width)))
+    return Table(header, tuple(rows), caption, style="routh")
+
+
+def _vertex_section(vertex: KharitonovVertex, degree: int) -> Section:
+    words = "Hurwitz" if vertex.hurwitz else "NOT Hurwitz"
+    ends = " ".join("H" if p == "high" else "L" for p in vertex.pattern)
+    blocks: list = [Paragraph((f"Coefficient ends used, a{degree} … a0: ", Code(ends),
+                               " (L lower, H upper end of the coefficient's range)"), "note")]
+    table = vertex.table
+    if table is None:
+        blocks.append(Paragraph(("No table kept for this polynomial.",), "note"))
+        return Section(f"{vertex.label}: {words}", tuple(blocks))
+    blocks.append(routh_table_block(table, f"Routh array of {vertex.label}"))
+    signs = " ".join("+" if s > 0 else "−" for s in table.first_column_signs)
+    blocks.append(Paragraph(("First column signs ", Code(signs), f"; {table.sign_changes} sign "
+                             f"change(s); roots: {_roots_words(table.roots)}."), "note"))
+    for special in table.special_rows:
+        blocks.append(Paragraph(("Special row: " + special.describe() + ".",), "note"))
+    if table.counted_by_factors:
+        blocks.append(Paragraph(("The counts come from the factors of p = q·gcd(p(s), p(−s)), each "
+                                 "tabulated on its own (an ε row met roots symmetric about the origin).",),
+                                "note"))
+    return Section(f"{vertex.label}: {words}", tuple(blocks))
+
+
+def certificate_section(result: CheckResult, degree: int) -> Section:
+    """The four Kharitonov polynomials of the overbound over the whole box, with tables."""
+    over = result.overbound
+    if over.stable:
+        lead = ("All four Kharitonov polynomials of the coefficient overbound are Hurwitz. By "
+                "Kharitonov's theorem every polynomial whose coefficients lie in these intervals is "
+                "Hurwitz, hence every parameter set in the box gives a stable loop.")
+    elif result.verdict == "stable":
+        lead = ("The overbound over the whole box is not enough on its own (see the failing "
+                "polynomial below); the proof came from the method named above. The tables are "
+                "the record of the overbound.")
+    else:
+        lead = ("The overbound over the whole box is not Hurwitz; the verdict rests on the witness "
+                "below, which is a point of the box checked with its own exact Routh array.")
+    blocks: list = [Paragraph((lead,))]
+    if not result.vertex_tables:
+        blocks.append(Paragraph(("No Kharitonov tables: the range of the leading coefficient "
+                                 "contains zero, so the degree is not invariant over the box.",), "note"))
+        return Section("Certificate: Routh arrays of the Kharitonov polynomials", tuple(blocks),
+                       anchor="certificate")
+    blocks.append(Paragraph(("Entries are exact rationals. Long ones are shown as ≈ a float; the "
+                             "exact text is kept (hover over it in the HTML report, listed below "
+                             "the table in the Markdown report, and in result.json under "
+                             "\"certificate\").",), "note"))
+    group = Section("", tuple(_vertex_section(v, degree) for v in result.vertex_tables), group=True)
+    blocks.append(group)
+    return Section("Certificate: Routh arrays of the Kharitonov polynomials", tuple(blocks),
+                   anchor="certificate")
+
+
+def witness_section(case, witness: Witness, title: str = "Witness: a parameter set that is not stable"
+                    ) -> Section:
+    """The counterexample, exact and as floats, with its root counts and root values."""
+    rows = []
+    for name, value in witness.parameters.items():
+        p = case.parameter(name)
+        rows.append((Cell((name,), mono=True), exact_cell(value),
+                     Cell((short(float(value), 8),), numeric=True),
+                     Cell((f"{short(float(p.low))} … {short(float(p.high))}",), numeric=True),
+                     Cell((p.unit,))))
+    table = Table(("parameter", "exact value", "value", "range", "unit"), tuple(rows))
+    values = witness.root_values()
+    shown = [f"{z.real:.6g} {'+' if z.imag >= 0 else '−'} {abs(z.imag):.6g}j" for z in values[:10]]
+    blocks = (
+        Paragraph((f"Found by: {witness.found_by}. Re-checked with the exact Routh array at these exact "
+                   "rational values.",)),
+        table,
+        Paragraph((f"Roots of this member: {_roots_words(witness.roots)}.",)),
+        ItemList(tuple((Code(text),) for text in shown)),
+        Paragraph(("Root values are floats, for display; the counts above are exact.",), "note"),
+    )
+    return Section(title, blocks, anchor="witness")
+
+
+def undecided_blocks(result: CheckResult) -> list:
+    """What an undecided check leaves open."""
+    blocks: list = [Paragraph((f"Unresolved: {float(result.unresolved):.3%} of the box volume is "
+                               "neither proven stable nor refuted within the budget.",))]
+    if result.largest_unproven is not None:
+        box = result.largest_unproven
+        parts = ", ".join(f"{n} in [{short(float(a))}, {short(float(b))}]"
+                          for n, (a, b) in zip(box.names, box.intervals, strict=True))
+        blocks.append(Paragraph(("Largest unproven sub-box: " + parts + ".",)))
+    blocks.append(Paragraph(("A larger --max-seconds budget may decide it.",), "note"))
+    return blocks

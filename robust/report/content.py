@@ -1,0 +1,385 @@
+"""What the report says, in order, as neutral blocks (no markup here).
+
+Order: the job and the case; the parameters; the polynomial and its coefficients; the
+verdict and its certificate (or witness); margins and requirements; the ranking; the
+yield; the figures; the cautions; the record (version, date, case checksum, settings).
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from typing import Any
+
+from ..graph import build_graph
+from .analysis import Analysis
+from .blocks import (
+    Badge,
+    Cell,
+    Code,
+    Document,
+    Figure,
+    ItemList,
+    Num,
+    Paragraph,
+    Preformatted,
+    Section,
+    Table,
+)
+from .certificate import certificate_section, undecided_blocks, witness_section
+from .fmt import bound_text, short
+
+__all__ = ["CAUTIONS", "JOB_LINE", "build_document", "outcome"]
+
+JOB_LINE = ("robust proves, in exact arithmetic, that a feedback loop's characteristic polynomial is "
+            "stable for every combination of parameter values inside their tolerances, or refutes it "
+            "with a verified counterexample.")
+
+#: DESIGN.md section 7, in our words.
+CAUTIONS = (
+    "A verdict covers only the polynomial that was modelled. Unmodelled dynamics, delays, saturation, "
+    "nonlinearity, time variation, ageing, and temperatures outside the stated ranges are not covered.",
+    "Stability is necessary for a safe loop, not sufficient.",
+    "Safety-relevant designs are signed off under the applicable standards by qualified engineers. "
+    "This report supports that review; it does not replace it.",
+)
+
+_HEADLINE = {
+    "stable": "STABLE for every parameter set inside the tolerances (proven)",
+    "unstable": "NOT ROBUSTLY STABLE: a verified counterexample lies inside the tolerances",
+    "undecided": "UNDECIDED within the time budget",
+}
+
+_KIND_TEXT = {
+    "independent": "each parameter enters one coefficient only, so the interval "
+                   "overbound of the coefficients is exact and Kharitonov's theorem decides the family",
+    "affine": "every coefficient is affine in the parameters (a polytope of polynomials; "
+              "the edge theorem can decide it exactly)",
+    "multilinear": "each coefficient is affine in each parameter separately; the "
+                   "interval overbound is sound but may be conservative (box subdivision refines it)",
+    "polynomial": "parameters enter with powers; the interval overbound is sound but may be "
+                  "conservative (box subdivision refines it)",
+    "rational": "a denominator that keeps one sign over the box was cleared; the interval "
+                "overbound is sound but may be conservative (box subdivision refines it)",
+}
+
+_PASS = {True: ("PASS", "pass"), False: ("FAIL", "fail"), None: ("UNDECIDED", "open")}
+
+
+def _badge(passed: bool | None, key: str = "") -> Badge:
+    text, kind = _PASS[passed]
+    return Badge(text, kind, key, passed)
+
+
+def _requirement_results(analysis: Analysis) -> list[tuple[str, Fraction, bool | None, bool | None]]:
+    """(name, required, from the bracket, decided directly) per requirement of the case."""
+    req = analysis.case.requirements
+    direct = {r.name: r.passed for r in analysis.requirements}
+    out = []
+    if req.margin is not None:
+        out.append(("margin", req.margin, analysis.margin.passed, direct.get("margin")))
+    if req.decay_rate is not None:
+        decay = analysis.margin.decay
+        out.append(("decay_rate", req.decay_rate, decay.passed if decay else None, direct.get("decay_rate")))
+    return out
+
+
+def _combined(bracket: bool | None, direct: bool | None) -> bool | None:
+    return direct if direct is not None else bracket
+
+
+def outcome(analysis: Analysis) -> tuple[str, str]:
+    """The sign-off outcome: ("pass" | "fail" | "open", one sentence)."""
+    verdict = analysis.check.verdict
+    if verdict == "unstable":
+        return "fail", "The design FAILS: it is not stable over the whole tolerance box."
+    if verdict == "undecided":
+        return "open", "No sign-off: robust stability could not be decided within the budget."
+    results = [(name, _combined(b, d)) for name, _, b, d in _requirement_results(analysis)]
+    failed = [name for name, passed in results if passed is False]
+    open_ = [name for name, passed in results if passed is None]
+    if failed:
+        return "fail", ("The design is robustly stable but FAILS its requirement(s): "
+                        + ", ".join(failed) + ".")
+    if open_:
+        return "open", ("The design is robustly stable; requirement(s) " + ", ".join(open_)
+                        + " could not be decided within the budget.")
+    if results:
+        return "pass", "The design PASSES: robustly stable, and every requirement is met."
+    return "pass", "The design PASSES: robustly stable over the whole tolerance box (no requirements set)."
+
+
+def _header(analysis: Analysis) -> Section:
+    case = analysis.case
+    kind, sentence = outcome(analysis)
+    blocks: list = [Paragraph((JOB_LINE,), "lead"),
+                    Paragraph((case.title,), "title")]
+    if case.summary:
+        blocks.append(Paragraph((case.summary,)))
+    blocks.append(Paragraph(("Case file: ", Code(case.path)), "note"))
+    blocks.append(Paragraph((Badge({"pass": "PASS", "fail": "FAIL", "open": "OPEN"}[kind], kind), " ",
+                             sentence), "outcome"))
+    return Section("Stability sign-off report", tuple(blocks), anchor="top")
+
+
+def _parameters(analysis: Analysis) -> Section:
+    rows = []
+    for p in analysis.case.parameters:
+        rows.append((Cell((p.name,), mono=True), Cell((short(float(p.nominal)),), numeric=True),
+                     Cell((f"{short(float(p.low))} … {short(float(p.high))}",), numeric=True),
+                     Cell((p.tolerance,)), Cell((p.unit,)), Cell((p.distribution,)), Cell((p.note,))))
+    table = Table(("name", "nominal", "range", "tolerance", "unit", "distribution", "note"), tuple(rows))
+    return Section("Parameters", (table, Paragraph(
+        ("Values are exact rationals from their decimal text; shown here to six digits. "
+         "A normal distribution takes the tolerance as three standard deviations, clipped to the range.",),
+        "note")), anchor="parameters")
+
+
+def _polynomial(analysis: Analysis) -> Section:
+    case = analysis.case
+    family = case.family
+    graph = build_graph(family)
+    written = "\n".join(f"{field} = {text}" for field, text in case.formulas)
+    bounds = family.bounds()
+    rows = []
+    for k, (formula, b) in enumerate(zip(family.formulas(), bounds, strict=True)):
+        power = family.degree - k
+        deps = [f"{param[1]} ({graph.edges[param, ('coefficient', power)]['direction']})"
+                for param in graph.predecessors(("coefficient", power))]
+        rows.append((Cell((f"a{power}",), mono=True), Cell((formula,), mono=True),
+                     Cell((f"{short(float(b.low))} … {short(float(b.high))}",), numeric=True),
+                     Cell(("exact" if b.exact else "outer",)), Cell((", ".join(deps) or "constant",))))
+    blocks: list = [
+        Paragraph((f"As written in the case file (variable {case.variable}):",)),
+        Preformatted(written),
+        Paragraph((f"Degree {family.degree}. The coefficients as robust holds them, highest power first, "
+                   "with their range over the tolerance box. Denominators are cleared and the whole "
+                   "polynomial may be scaled by a constant factor; neither moves the roots.",)),
+        Table(("coefficient", "formula in the parameters", "range over the box", "bound", "driven by"),
+              tuple(rows)),
+        Paragraph(("Family class: ", Code(family.kind),
+                   " — " + _KIND_TEXT.get(family.kind, family.kind) + ".")),
+        Paragraph(("Direction (+, −, mixed): how the coefficient moves as the parameter grows, over the "
+                   "whole box. An outer bound may be wider than the true range; it is still safe to use.",),
+                  "note"),
+    ]
+    if family.cleared:
+        blocks.append(Paragraph(("Cleared factor (keeps one sign over the box): ", Code(family.cleared)),
+                                "note"))
+    return Section("Characteristic polynomial", tuple(blocks), anchor="polynomial")
+
+
+def _verdict(analysis: Analysis) -> Section:
+    case, result = analysis.case, analysis.check
+    passed = {"stable": True, "unstable": False}.get(result.verdict)
+    blocks: list = [
+        Paragraph((Badge(_HEADLINE[result.verdict], _PASS[passed][1], "check.verdict", result.verdict),),
+                  "outcome"),
+        Paragraph(("Method: " + result.method_text + ".",)),
+        Paragraph(("Why: " + result.reason + ".",)),
+        Paragraph((f"Nominal design: {result.nominal.open_right} root(s) in the open right half-plane, "
+                   f"{result.nominal.imaginary_axis} on the imaginary axis, {result.nominal.open_left} in "
+                   "the open left half-plane.",)),
+    ]
+    if result.method == "subdivision" and result.verdict == "stable":
+        blocks.append(Paragraph((f"Subdivision: {result.proven_boxes} sub-boxes proven (of {result.boxes} "
+                                 f"examined), depth up to {result.max_depth}.",)))
+    if result.method == "edges":
+        blocks.append(Paragraph((f"Edges: {result.edges} segments decided exactly.",)))
+    if result.verdict == "undecided":
+        blocks += undecided_blocks(result)
+    blocks.append(Paragraph((f"Time: {result.seconds:.2f} s.",), "note"))
+    blocks.append(certificate_section(result, case.family.degree))
+    if result.witness is not None:
+        blocks.append(witness_section(case, result.witness))
+    return Section("Verdict", tuple(blocks), anchor="verdict")
+
+
+def _bracket_parts(bracket, json_bracket: dict, key: str) -> tuple:
+    lower = Num(bound_text(bracket.lower, upward=False), json_bracket["lower"], key + ".lower")
+    if bracket.upper is None:
+        return ("at least ", lower)
+    upper = Num(bound_text(bracket.upper, upward=True), json_bracket["upper"], key + ".upper")
+    return ("[", lower, ", ", upper, "]")
+
+
+def _margins(analysis: Analysis) -> Section:
+    m = analysis.margin
+    data: dict[str, Any] = m.as_dict()
+    requirements = {name: (required, b, d) for name, required, b, d in _requirement_results(analysis)}
+    rows = []
+
+    def row(label: str, bracket, json_bracket: dict, key: str, name: str) -> tuple:
+        exact = bracket.exact or ""
+        if exact and bracket.decimal:
+            exact = f"{exact} = {bracket.decimal}" if len(exact) <= 60 else f"≈ {bracket.decimal}"
+        if name in requirements:
+            required, from_bracket, direct = requirements[name]
+            asked = Cell((f"≥ {short(float(required))}",), numeric=True)
+            verdict = Cell((_badge(_combined(from_bracket, direct)),))
+        else:
+            asked, verdict = Cell(("none",)), Cell(("-",))
+        return (Cell((label,)), Cell(_bracket_parts(bracket, json_bracket, key), numeric=True),
+                Cell((exact or "-",), mono=bool(exact)), asked, verdict)
+
+    rows.append(row("robust margin ρ*: scale of every tolerance about nominal", m.margin,
+                    data["margin"], "margin.margin", "margin"))
+    if m.decay is not None:
+        rows.append(row("decay-rate margin σ*: every root has Re s < −σ", m.decay.bracket,
+                        data["decay_rate"], "margin.decay_rate", "decay_rate"))
+    blocks: list = [Table(("quantity", "certified bracket", "exact value", "requirement", "outcome"),
+                          tuple(rows)),
+                    Paragraph(("A certified bracket [lower, upper]: the family is proven stable at the "
+                               "lower end and a verified witness lies at the upper end. Shown values are "
+                               "rounded outwards.",), "note")]
+    low = m.margin.lower
+    if m.margin.upper is None:
+        text = f"Stable with every tolerance scaled by at least {float(low):.6g}."
+    elif low >= 1:
+        text = f"Headroom: every tolerance can grow by {float(low - 1):.2%} and the loop stays stable."
+    else:
+        text = (f"The tolerances must shrink to {float(low):.2%} of their width about nominal "
+                "for the loop to be stable over the box.")
+    items: list = [(text,), (f"Method: {m.method}.",)]
+    if m.margin.note:
+        items.append((f"Margin note: {m.margin.note}.",))
+    if m.decay is not None:
+        settle = m.decay.settling_time()
+        if settle is not None:
+            items.append((f"Worst-case 2 % settling time about 4/σ = {settle:.4g} s (rule of thumb).",))
+        if m.decay.bracket.note:
+            items.append((f"Decay-rate note: {m.decay.bracket.note}.",))
+    if m.margin.witness is not None:
+        pts = ", ".join(f"{n} = {float(v):.6g}" for n, v in m.margin.witness.parameters.items())
+        items.append(("Witness just beyond the margin: " + pts + ".",))
+    for r in analysis.requirements:
+        what = {"margin": f"stable over the box with every tolerance scaled by {float(r.required):g}",
+                "decay_rate": f"every root left of Re s = −{float(r.required):g} over the box"}[r.name]
+        items.append((f"Decided directly: {what}: ", _badge(r.passed)))
+    if not analysis.requirements and requirements and analysis.check.verdict != "stable":
+        items.append(("Requirements were not decided directly because the design is not robustly "
+                      "stable; the outcome above comes from the brackets.",))
+    blocks.append(ItemList(tuple(items)))
+    return Section("Margins and requirements", tuple(blocks), anchor="margins")
+
+
+def _rank_bracket(bracket) -> str:
+    if bracket.upper is None:
+        return f"≥ {bound_text(bracket.lower, upward=False, digits=5)}"
+    lo = bound_text(bracket.lower, upward=False, digits=5)
+    hi = bound_text(bracket.upper, upward=True, digits=5)
+    return lo if lo == hi else f"{lo} … {hi}"
+
+
+def _ranking(analysis: Analysis) -> Section:
+    r = analysis.rank
+    failing = r.robustly_stable is False
+    rows = []
+    for i, p in enumerate(r.parameters, start=1):
+        acts = ", ".join(f"a{power} ({d})" for power, d in p.coefficients) or "-"
+        cells = [Cell((str(i),), numeric=True), Cell((p.name,), mono=True), Cell((p.tolerance,)),
+                 Cell((_rank_bracket(p.margin_alone),), numeric=True),
+                 Cell((_rank_bracket(p.margin_given_others),), numeric=True), Cell((acts,))]
+        if failing:
+            if p.restores:
+                cells.append(Cell((f"scale to ≤ {float(p.tightened or 0):.4g}",)))
+            elif p.restores is False:
+                cells.append(Cell(("does not help alone",)))
+            else:
+                cells.append(Cell(("-",)))
+        rows.append(tuple(cells))
+    header = ["rank", "parameter", "tolerance", "margin alone", "margin, others full", "acts through"]
+    if failing:
+        header.append("tightening this part alone")
+    blocks: list = [
+        Table(tuple(header), tuple(rows)),
+        Paragraph(("Margins are scales of that one tolerance: alone = the others at nominal; others full = "
+                   "the others over their whole range. 1 means the tolerance as given; ≥ means stable up to "
+                   "the value shown (no failure found before the cap or the budget).",), "note"),
+        Figure("ranking", "Per-parameter margins; the dashed line at 1 is the tolerance as given. "
+               "Bars longer than the axis are cut, with their value written beside them.",
+               "bar chart of per-parameter margins"),
+    ]
+    return Section("Parameter ranking (most critical first)", tuple(blocks), anchor="ranking")
+
+
+def _yield(analysis: Analysis) -> Section:
+    y = analysis.yield_result
+    data = y.as_dict()
+    lo, hi = y.interval
+    blocks: list = [
+        Paragraph((f"{y.stable} of {y.draws} random builds are stable: yield ",
+                   Num(f"{y.fraction:.2%}", data["yield"], "yield.yield"),
+                   f" ({y.confidence:.0%} Clopper-Pearson interval {lo:.2%} … {hi:.2%}; seed {y.seed}; "
+                   f"{y.exact_rechecks} unclear float decision(s) re-checked exactly).")),
+    ]
+    if y.unstable_ranges:
+        blocks.append(Paragraph(("Parameter ranges of the unstable draws:",)))
+        blocks.append(ItemList(tuple((Code(n), f": {a:.6g} … {b:.6g}") for n, a, b in y.unstable_ranges)))
+    blocks.append(Paragraph(("A yield estimate is no proof: the verdict above is the worst case.",), "note"))
+    return Section("Monte Carlo yield", tuple(blocks), anchor="yield")
+
+
+def _figures(analysis: Analysis) -> Section:
+    interval = analysis.case.family.structure == "independent"
+    inside = ("Here the family is an interval family, so the rectangle is the family's own value set: "
+              "a rectangle that contains the origin shows a member with a root on the imaginary axis at "
+              "that frequency." if interval else
+              "For this family the rectangle is an overbound of the true value set: it may contain the "
+              "origin although no member has a root at that frequency (that is when box subdivision takes "
+              "over).")
+    value_set = Figure(
+        "value_set",
+        "(a) Value set at several frequencies ω around the nominal roots' magnitudes. Hatched: the values "
+        "p(jω) of the interval overbound of the coefficients, a rectangle with the four Kharitonov "
+        "polynomials at its corners (K1 … K4). Dots: p(jω) of randomly drawn members, which always lie in "
+        "it. Zero exclusion: the loop is robustly stable when the origin stays outside every rectangle "
+        "for all ω and one member is stable. Each panel is scaled so that the rectangle fills [−1, 1] in "
+        "both directions; the origin is given in the same units. " + inside,
+        "value set rectangles and sampled points per frequency")
+    cloud = Figure(
+        "root_cloud",
+        "(b) Roots of randomly drawn members (dots), the nominal roots (×) and the imaginary axis "
+        "(dashed). Roots right of the dashed line are unstable." +
+        (" Squares: the roots of the witness." if analysis.check.witness is not None else ""),
+        "root cloud")
+    graph = Figure(
+        "dependency_graph",
+        "(c) Which parameter drives which coefficient. Solid: the coefficient grows with the parameter "
+        "over the whole box; dashed: it falls; dotted: mixed.",
+        "dependency graph parameters to coefficients")
+    return Section("Figures", (value_set, cloud, graph), anchor="figures", new_page=True)
+
+
+def _cautions() -> Section:
+    return Section("Cautions", (ItemList(tuple((c,) for c in CAUTIONS)),), anchor="cautions")
+
+
+def _record(analysis: Analysis) -> Section:
+    case = analysis.case
+    s = analysis.settings
+    rows = (
+        (Cell(("tool",)), Cell((f"robust {analysis.version}",), mono=True)),
+        (Cell(("date",)), Cell((analysis.started,), mono=True)),
+        (Cell(("case file",)), Cell((case.path,), mono=True)),
+        (Cell(("SHA-256 of the case file",)),
+         Cell((Num(case.sha256, case.sha256, "case_sha256"),), mono=True)),
+        (Cell(("budget",)), Cell((f"{s.max_seconds:g} s for the exact analyses; {s.yield_draws} yield "
+                                  f"draws; seed {s.seed}",))),
+        (Cell(("times",)), Cell((f"check {analysis.check.seconds:.2f} s, "
+                                 f"margin {analysis.margin.seconds:.2f} s, "
+                                 f"rank {analysis.rank.seconds:.2f} s, "
+                                 f"yield {analysis.yield_result.seconds:.2f} s",))),
+    )
+    rerun = (f"robust report {case.path} -o DIR --max-seconds {s.max_seconds:g} "
+             f"--draws {s.yield_draws} --seed {s.seed}")
+    return Section("Record", (Table(("item", "value"), rows), Paragraph(("To re-run: ",)),
+                              Preformatted(rerun)), anchor="record")
+
+
+def build_document(analysis: Analysis) -> Document:
+    """The whole report as blocks."""
+    return Document(
+        f"robust report: {analysis.case.title}",
+        (_header(analysis), _parameters(analysis), _polynomial(analysis), _verdict(analysis),
+         _margins(analysis), _ranking(analysis), _yield(analysis), _figures(analysis), _cautions(),
+         _record(analysis)))

@@ -1,0 +1,372 @@
+"""The report's pictures as PNG bytes (matplotlib, Agg canvas, imported lazily).
+
+Our own plain look: greys and black only, meaning carried by line style, marker shape
+and hatching, so that every picture survives a monochrome printer. No global pyplot
+state is touched: each picture is a fresh ``Figure`` on its own Agg canvas.
+"""
+
+from __future__ import annotations
+
+import io
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from .analysis import Analysis
+from .figdata import choose_omegas, nominal_roots, polynomial_roots, sample_draws, value_set_data
+
+__all__ = ["FIGURE_NAMES", "Picture", "draw_figures"]
+
+#: File stems of the pictures, in report order.
+FIGURE_NAMES = ("ranking", "value_set", "root_cloud", "dependency_graph")
+
+#: Members sampled for the value-set and root-cloud pictures.
+SAMPLED_MEMBERS = 400
+
+_DPI = 150
+_STYLE: dict[str, Any] = {
+    "font.family": "DejaVu Sans",
+    "font.size": 9.5,
+    "axes.titlesize": 10,
+    "axes.labelsize": 9.5,
+    "axes.edgecolor": "#333333",
+    "axes.linewidth": 0.8,
+    "xtick.labelsize": 8.5,
+    "ytick.labelsize": 8.5,
+    "legend.fontsize": 8.5,
+    "legend.frameon": True,
+    "legend.edgecolor": "#999999",
+    "legend.framealpha": 1.0,
+    "axes.grid": False,
+    "figure.facecolor": "white",
+    "savefig.facecolor": "white",
+    "hatch.color": "#555555",
+    "hatch.linewidth": 0.6,
+}
+
+
+@dataclass(frozen=True, slots=True)
+class Picture:
+    """One rendered figure: file stem, PNG bytes and a text alternative."""
+
+    name: str
+    png: bytes
+    alt: str
+
+
+def _new_figure(width: float, height: float):
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    figure = Figure(figsize=(width, height), dpi=_DPI, layout="constrained")
+    FigureCanvasAgg(figure)
+    return figure
+
+
+def _png(figure) -> bytes:
+    buffer = io.BytesIO()
+    figure.savefig(buffer, format="png", dpi=_DPI, metadata={"Software": None})
+    return buffer.getvalue()
+
+
+def draw_figures(analysis: Analysis) -> tuple[Picture, ...]:
+    """Every picture of the report, in :data:`FIGURE_NAMES` order."""
+    import matplotlib
+
+    case = analysis.case
+    draws = sample_draws(case, SAMPLED_MEMBERS, analysis.settings.seed)
+    with matplotlib.rc_context(_STYLE):  # type: ignore[arg-type]  # rc names typed as literals
+        return (
+            ranking_picture(analysis),
+            value_set_picture(case, choose_omegas(case), draws),
+            root_cloud_picture(case, draws, analysis.check.witness),
+            dependency_picture(case),
+        )
+
+
+# -- (a) value set ------------------------------------------------------------------------
+
+_LIMIT = 2.4  # half-width of each normalised panel
+
+
+def value_set_picture(case, omegas: Sequence[float], draws: np.ndarray) -> Picture:
+    """Small multiples: per omega, the overbound's rectangle, the members, the origin.
+
+    Each panel maps the rectangle onto [-1, 1] x [-1, 1] (real and imaginary parts scaled
+    separately: containment, and so zero exclusion, survive such a scaling).
+    """
+    data = value_set_data(case, omegas, draws)
+    columns = 3
+    rows = math.ceil(len(data) / columns)
+    figure = _new_figure(7.6, 3.05 * rows + 0.9)
+    axes = figure.subplots(rows, columns, squeeze=False)
+    for ax in axes.flat[len(data):]:
+        ax.set_axis_off()
+    for ax, entry in zip(axes.flat, data, strict=False):
+        re_lo, re_hi, im_lo, im_hi = entry["rectangle"]
+        cx, cy = (re_lo + re_hi) / 2, (im_lo + im_hi) / 2
+        hx = (re_hi - re_lo) / 2 or max(abs(cx), 1.0) * 1e-12
+        hy = (im_hi - im_lo) / 2 or max(abs(cy), 1.0) * 1e-12
+
+        def scaled(x, y, cx=cx, cy=cy, hx=hx, hy=hy):
+            return (np.asarray(x) - cx) / hx, (np.asarray(y) - cy) / hy
+
+        from matplotlib.patches import Rectangle
+
+        ax.add_patch(Rectangle((-1, -1), 2, 2, facecolor="#f2f2f2", edgecolor="black",
+                               hatch="////", linewidth=1.1, zorder=1))
+        u, v = scaled(entry["points"][:, 0], entry["points"][:, 1])
+        ax.plot(u, v, linestyle="none", marker=".", markersize=2.6, color="#202020",
+                alpha=0.75, zorder=3, label="sampled members")
+        nu, nv = scaled(*entry["nominal"])
+        ax.plot([nu], [nv], linestyle="none", marker="D", markersize=5, markerfacecolor="white",
+                markeredgecolor="black", zorder=4, label="nominal")
+        for label, (x, y) in entry["corners"].items():
+            cu, cv = scaled(x, y)
+            offset = (float(np.sign(cu)) * 4, float(np.sign(cv)) * 4)
+            ax.annotate(label, (float(cu), float(cv)), xytext=offset,
+                        textcoords="offset points", fontsize=7.5, color="#333333",
+                        ha="left" if cu > 0 else "right", va="bottom" if cv > 0 else "top")
+        ou, ov = scaled(0.0, 0.0)
+        ou, ov = float(ou), float(ov)
+        inside = abs(ou) <= _LIMIT and abs(ov) <= _LIMIT
+        if inside:
+            ax.plot([ou], [ov], linestyle="none", marker="o", markersize=9, markerfacecolor="white",
+                    markeredgecolor="black", markeredgewidth=1.4, zorder=5)
+            ax.plot([ou], [ov], linestyle="none", marker="+", markersize=9, color="black",
+                    markeredgewidth=1.4, zorder=6, label="origin")
+        else:
+            # the origin lies outside the panel: an arrow near the border points at it
+            reach = 1.0 / max(abs(ou), abs(ov))
+            tail = (ou * reach * 1.45, ov * reach * 1.45)
+            tip = (ou * reach * 2.25, ov * reach * 2.25)
+            ax.annotate("", xy=tip, xytext=tail,
+                        arrowprops={"arrowstyle": "-|>", "color": "black", "linewidth": 1.3},
+                        zorder=6)
+        verdict = "origin INSIDE the rectangle" if entry["origin_inside"] else "origin excluded"
+        where = "" if inside else f", at ({ou:.2g}, {ov:.2g})"
+        ax.set_title(f"ω = {entry['omega']:.3g}\n{verdict}{where}", fontsize=8.5, linespacing=1.3)
+        ax.set_xlim(-_LIMIT, _LIMIT)
+        ax.set_ylim(-_LIMIT, _LIMIT)
+        ax.set_aspect("equal")
+        ax.set_xticks([-2, -1, 0, 1, 2])
+        ax.set_yticks([-2, -1, 0, 1, 2])
+        ax.axhline(0, color="#bbbbbb", linewidth=0.5, zorder=0)
+        ax.axvline(0, color="#bbbbbb", linewidth=0.5, zorder=0)
+        ax.set_xlabel("Re p(jω), scaled", fontsize=8)
+        ax.set_ylabel("Im p(jω), scaled", fontsize=8)
+    handles, labels = axes.flat[0].get_legend_handles_labels()
+    from matplotlib.patches import Patch
+
+    handles.insert(0, Patch(facecolor="#f2f2f2", edgecolor="black", hatch="////"))
+    labels.insert(0, "value set of the coefficient overbound (Kharitonov rectangle)")
+    from matplotlib.lines import Line2D
+
+    ring = Line2D([], [], linestyle="none", marker="o", markersize=9, markerfacecolor="white",
+                  markeredgecolor="black", markeredgewidth=1.4)
+    cross = Line2D([], [], linestyle="none", marker="+", markersize=9, color="black", markeredgewidth=1.4)
+    keep = [i for i, lab in enumerate(labels) if lab != "origin"]
+    handles = [handles[i] for i in keep] + [(ring, cross),
+                                            Line2D([], [], color="black", linewidth=1.3, marker=">",
+                                                   markevery=[1], markersize=5)]
+    labels = [labels[i] for i in keep] + ["origin (zero exclusion asks: outside every rectangle)",
+                                          "direction of the origin when off the panel"]
+    figure.legend(handles, labels, loc="outside lower center", ncol=2, fontsize=8)
+    alt = ("Value set at " + ", ".join(f"{d['omega']:.3g}" for d in data) + ": "
+           + "; ".join(f"ω = {d['omega']:.3g} origin {'inside' if d['origin_inside'] else 'excluded'}"
+                       for d in data))
+    return Picture("value_set", _png(figure), alt)
+
+
+# -- (b) root cloud -----------------------------------------------------------------------
+
+
+def root_cloud_picture(case, draws: np.ndarray, witness=None) -> Picture:
+    """Roots of the sampled members, the nominal roots and the imaginary axis."""
+    family = case.family
+    roots = polynomial_roots(family.coefficients_float(np.asarray(draws, dtype=float))).ravel()
+    roots = roots[np.isfinite(roots)]
+    nominal = nominal_roots(case)
+    nominal = nominal[np.isfinite(nominal)]
+    figure = _new_figure(7.6, 4.8)
+    ax = figure.subplots()
+    everything = np.concatenate([roots, nominal])
+    sizes = np.abs(everything[np.abs(everything) > 0])
+    spread = float(sizes.max() / sizes.min()) if len(sizes) else 1.0
+    if spread > 30:
+        width = float(np.min(np.abs(nominal[np.abs(nominal) > 0]))) / 2 if np.any(nominal) else 1.0
+        ax.set_xscale("asinh", linear_width=width)
+        ax.set_yscale("asinh", linear_width=width)
+        note = f"asinh axes: linear within ±{width:.3g}, logarithmic beyond"
+    else:
+        note = "linear axes"
+    right = roots.real > 0
+    ax.plot(roots.real[~right], roots.imag[~right], linestyle="none", marker=".", markersize=3,
+            color="#777777", alpha=0.6, label=f"roots of {SAMPLED_MEMBERS} sampled members")
+    if right.any():
+        ax.plot(roots.real[right], roots.imag[right], linestyle="none", marker="^", markersize=5,
+                markerfacecolor="white", markeredgecolor="black",
+                label="sampled roots in the right half-plane")
+    ax.plot(nominal.real, nominal.imag, linestyle="none", marker="x", markersize=9,
+            markeredgewidth=1.8, color="black", label="nominal roots")
+    if witness is not None:
+        values = np.array(witness.root_values())
+        ax.plot(values.real, values.imag, linestyle="none", marker="s", markersize=7,
+                markerfacecolor="none", markeredgecolor="black", markeredgewidth=1.2,
+                label="witness roots")
+    ax.axvline(0, color="black", linestyle="--", linewidth=1.0, label="imaginary axis")
+    ax.axhline(0, color="#bbbbbb", linewidth=0.5, zorder=0)
+    low = float(min(everything.real.min(), 0)) if len(everything) else -1.0
+    high = float(max(everything.real.max(), 0)) if len(everything) else 1.0
+    pad = (high - low) * 0.08 or 1.0
+    if spread > 30:
+        ax.set_xlim(low * 1.6 if low < 0 else -1, max(high * 1.6, width))
+    else:
+        ax.set_xlim(low - pad, high + pad)
+    ax.grid(True, color="#dddddd", linewidth=0.5)
+    ax.set_xlabel("Re s")
+    ax.set_ylabel("Im s")
+    if spread > 30:
+        _decade_ticks(ax.xaxis, ax.get_xlim(), width)
+        _decade_ticks(ax.yaxis, ax.get_ylim(), width)
+    ax.set_title(f"Roots of sampled members ({note})", fontsize=9.5)
+    figure.legend(loc="outside lower center", ncol=3, fontsize=8)
+    alt = (f"Root cloud of {SAMPLED_MEMBERS} sampled members; largest real part "
+           f"{float(roots.real.max()) if len(roots) else float('nan'):.4g}")
+    return Picture("root_cloud", _png(figure), alt)
+
+
+def _decade_ticks(axis, limits: tuple[float, float], width: float) -> None:
+    """Ticks at 0 and at the powers of ten well outside the linear part of an asinh axis."""
+    big = max(abs(limits[0]), abs(limits[1]))
+    first = math.ceil(math.log10(max(width * 2.5, 1e-300)))
+    last = math.floor(math.log10(big)) if big > 0 else first
+    ticks, labels = [0.0], ["0"]
+    for k in range(first, last + 1):
+        for sign in (-1, 1):
+            value = sign * 10.0**k
+            if limits[0] <= value <= limits[1]:
+                ticks.append(value)
+                labels.append(("−" if sign < 0 else "") + f"$10^{{{k}}}$")
+    axis.set_ticks(ticks, labels)
+    axis.set_minor_locator(_no_ticks())
+
+
+def _no_ticks():
+    from matplotlib.ticker import NullLocator
+
+    return NullLocator()
+
+
+# -- (c) dependency graph -----------------------------------------------------------------
+
+_DIRECTION_STYLE: dict[str, tuple[Any, str]] = {
+    "+": ("-", "grows with the parameter (+)"),
+    "-": ("--", "falls as the parameter grows (−)"),
+    "mixed": (":", "both, depending on the point (mixed)"),
+    "0": ((0, (1, 3)), "no effect over the box (0)"),
+}
+
+
+def dependency_picture(case) -> Picture:
+    """Parameters (left) -> coefficients (right); line style gives the direction."""
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import FancyArrowPatch
+
+    from ..graph import build_graph
+
+    family = case.family
+    graph = build_graph(family)
+    names = list(family.names)
+    powers = list(range(family.degree, -1, -1))
+    tall = max(len(names), len(powers))
+    figure = _new_figure(7.6, 0.42 * tall + 1.5)
+    ax = figure.subplots()
+    ax.set_axis_off()
+
+    def place(count: int) -> list[float]:
+        if count == 1:
+            return [(tall - 1) / 2]
+        return list(np.linspace(tall - 1, 0, count))
+
+    left = dict(zip(names, place(len(names)), strict=True))
+    right = dict(zip(powers, place(len(powers)), strict=True))
+    x_left, x_right = 0.0, 1.0
+    used = set()
+    for name in names:
+        for node in graph.successors(("parameter", name)):
+            direction = graph.edges[("parameter", name), node]["direction"]
+            used.add(direction)
+            style = _DIRECTION_STYLE[direction][0]
+            arrow = FancyArrowPatch((x_left + 0.03, left[name]), (x_right - 0.03, right[node[1]]),
+                                    arrowstyle="-|>", mutation_scale=9, linestyle=style,
+                                    linewidth=1.1, color="#222222", shrinkA=0, shrinkB=0)
+            ax.add_patch(arrow)
+    box = {"boxstyle": "round,pad=0.3", "facecolor": "white", "edgecolor": "black", "linewidth": 0.9}
+    for name, y in left.items():
+        ax.text(x_left, y, name, ha="right", va="center", fontsize=9.5, bbox=box)
+    for power, y in right.items():
+        ax.text(x_right, y, f"a{power}  (s^{power})", ha="left", va="center", fontsize=9.5,
+                bbox={**box, "boxstyle": "square,pad=0.3", "facecolor": "#eeeeee"})
+    ax.text(x_left, tall - 0.2 + 0.6, "parameters", ha="right", va="bottom", fontsize=9.5,
+            fontweight="bold")
+    ax.text(x_right, tall - 0.2 + 0.6, "coefficients", ha="left", va="bottom", fontsize=9.5,
+            fontweight="bold")
+    ax.set_xlim(-0.22, 1.3)
+    ax.set_ylim(-0.8, tall + 0.6)
+    handles = [Line2D([], [], color="#222222", linestyle=_DIRECTION_STYLE[d][0], linewidth=1.3)
+               for d in ("+", "-", "mixed", "0") if d in used]
+    labels = [_DIRECTION_STYLE[d][1] for d in ("+", "-", "mixed", "0") if d in used]
+    figure.legend(handles, labels, loc="outside lower center", ncol=min(len(handles), 3),
+                  title="over the whole box, the coefficient ...", title_fontsize=8.5)
+    alt = "Dependency graph: " + "; ".join(
+        f"{n} -> " + ", ".join(f"a{node[1]} ({graph.edges[('parameter', n), node]['direction']})"
+                               for node in graph.successors(("parameter", n))) for n in names)
+    return Picture("dependency_graph", _png(figure), alt)
+
+
+# -- ranking ------------------------------------------------------------------------------
+
+
+def ranking_picture(analysis: Analysis) -> Picture:
+    """Horizontal bars of margin_alone and margin_given_others per parameter."""
+    params = list(analysis.rank.parameters)
+    figure = _new_figure(7.6, 0.4 * len(params) + 1.4)
+    ax = figure.subplots()
+    alone = [float(p.margin_alone.lower) for p in params]
+    given = [float(p.margin_given_others.lower) for p in params]
+    open_alone = [p.margin_alone.upper is None for p in params]
+    open_given = [p.margin_given_others.upper is None for p in params]
+    finite = [v for v, o in zip(alone + given, open_alone + open_given, strict=True) if not o]
+    top = max([*finite, 1.0]) * 1.25
+    top = max(min(top, 10.0), 1.5)
+    y = np.arange(len(params))[::-1].astype(float)
+    height = 0.36
+    for values, opens, offset, style, label in (
+            (alone, open_alone, height / 2, {"facecolor": "#9a9a9a", "edgecolor": "black"},
+             "this tolerance alone (others at nominal)"),
+            (given, open_given, -height / 2, {"facecolor": "white", "edgecolor": "black", "hatch": "xxx"},
+             "this tolerance, others over their full range")):
+        shown = [min(v, top) for v in values]
+        ax.barh(y + offset, shown, height=height * 0.95, linewidth=0.8, label=label, **style)
+        for yy, v, s, is_open in zip(y + offset, values, shown, opens, strict=True):
+            text = f"≥ {v:.4g}" if is_open else f"{v:.4g}"
+            if v > top:
+                text += " (cut)"
+            ax.text(s + top * 0.01, yy, text, va="center", ha="left", fontsize=8)
+    ax.axvline(1.0, color="black", linestyle="--", linewidth=1.2)
+    ax.text(1.0, len(params) - 0.45, " 1 = tolerances as given", ha="left", va="bottom", fontsize=8)
+    ax.set_yticks(y)
+    ax.set_yticklabels([p.name for p in params])
+    ax.set_xlim(0, top * 1.18)
+    ax.set_ylim(-0.7, len(params) - 0.1)
+    ax.set_xlabel("margin: scale of the tolerance that keeps the loop robustly stable")
+    ax.grid(True, axis="x", color="#dddddd", linewidth=0.5)
+    ax.set_axisbelow(True)
+    figure.legend(loc="outside lower center", ncol=2, fontsize=8)
+    alt = "Parameter margins: " + "; ".join(
+        f"{p.name} alone {a:.4g}, given others {g:.4g}" for p, a, g in zip(params, alone, given, strict=True))
+    return Picture("ranking", _png(figure), alt)
