@@ -161,24 +161,25 @@ def _crossing_polys(coeffs: Sequence[sp.Expr]) -> list[sp.Poly]:
 
 def _first_root(polys: Sequence[sp.Poly], cap: Fraction) -> tuple[sp.Expr, Fraction, Fraction] | None:
     """Least real root in (0, cap] over the polynomials: (exact root, isolating low, high)."""
+    sup = sp.Rational(cap.numerator, cap.denominator)
     best = None
     for poly in polys:
         if poly.is_zero or poly.degree() <= 0:
             continue
-        for (lo, hi), _ in poly.intervals(inf=0, sup=sp.Rational(cap.numerator, cap.denominator)):
-            if hi <= 0:
-                continue  # the root at 0 (cannot happen for a stable start) or below
-            lo_f = Fraction(int(lo.p), int(lo.q))
-            hi_f = Fraction(int(hi.p), int(hi.q))
-            if best is None or hi_f <= best[1] or lo_f < best[1]:
-                if best is None or lo_f < best[1]:
-                    best = (poly, lo_f, hi_f)
-            break  # intervals come sorted: the first positive one is the least
+        if not any(hi > 0 for (lo, hi), _ in poly.intervals(inf=0, sup=sup)):
+            continue  # no root in (0, cap] (a root at 0 cannot happen for a stable start)
+        # isolating intervals of different polynomials overlap in general, so their ends do
+        # not order the roots: compare the least positive roots themselves
+        roots = [r for r in poly.real_roots() if 0 < r <= sup]
+        if not roots:
+            continue
+        values = [r.evalf(40) for r in roots]
+        i = min(range(len(roots)), key=lambda j: values[j])
+        if best is None or values[i] < best[0]:
+            best = (values[i], poly, roots[i])
     if best is None:
         return None
-    poly, lo_f, hi_f = best
-    roots = [r for r in poly.real_roots() if r > 0]
-    root = min(roots, key=lambda r: float(r.evalf(30)))
+    _, poly, root = best
     # refine the isolating interval to ~1e-15 relative
     lo_f, hi_f = _refine(poly, root)
     return root, lo_f, hi_f
@@ -615,8 +616,10 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
         text, dec = _describe(root)
         tol = Fraction(rel_tol if rel_tol is not None else 1e-9)
         # short rationals just outside the isolating interval, within the asked width
-        lower = _short_between(lo_f * (1 - tol / 2), lo_f) or lo_f * (1 - tol / 4)
-        upper = _short_between(hi_f, hi_f * (1 + tol / 2)) or hi_f * (1 + tol / 4)
+        # strictly inside/outside: a rational root has lo_f == hi_f == root, where the
+        # family is on the stability boundary and neither proof nor witness exists
+        lower = _short_between(lo_f * (1 - tol / 2), lo_f * (1 - tol / 4)) or lo_f * (1 - tol / 4)
+        upper = _short_between(hi_f * (1 + tol / 4), hi_f * (1 + tol / 2)) or hi_f * (1 + tol / 4)
         proof = decide(family, family.box.scaled(family.nominal, lower), max_seconds=10, search=False)
         refute = decide(family, family.box.scaled(family.nominal, upper), max_seconds=10)
         if proof.verdict == "stable" and refute.verdict == "unstable":

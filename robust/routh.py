@@ -343,27 +343,26 @@ def is_hurwitz(coefficients: Sequence[Fraction | int]) -> bool:
     return _fraction_free_rows(ints, stop_at_non_positive=True) is not None
 
 
-def _sign_at_zero_plus(entry: Entry) -> int:
-    if isinstance(entry, Fraction):
-        return (entry > 0) - (entry < 0)
-    num, den = sp.fraction(sp.cancel(sp.together(entry)))
-    def low(expr: sp.Expr) -> int:
-        coeffs = sp.Poly(expr, EPSILON).all_coeffs()[::-1]
-        first = next(c for c in coeffs if c != 0)
-        return 1 if first > 0 else -1
-    return low(num) * low(den)
+# The special-case rows are computed in the field Q(ε) of rational functions (sympy's
+# sparse FracField, always in lowest terms): general sympy expressions with a positive
+# symbol made a degree-15 table take seconds.
+_FIELD, _EPS = sp.field([EPSILON], sp.QQ)
 
 
-def _is_zero(entry: Entry) -> bool:
-    if isinstance(entry, Fraction):
-        return entry == 0
-    return sp.cancel(entry) == 0
+def _sign_at_zero_plus(entry) -> int:
+    """Sign of a non-zero element of Q(ε) as ε -> 0+: that of its lowest-order terms."""
+    def low(poly) -> int:
+        return 1 if min(poly.terms())[1] > 0 else -1
+    return low(entry.numer) * low(entry.denom)
 
 
-def _simplify(entry: Entry) -> Entry:
-    if isinstance(entry, Fraction):
-        return entry
-    value = sp.cancel(sp.together(entry))
+def _is_zero(entry) -> bool:
+    return entry == 0
+
+
+def _from_field(entry) -> Entry:
+    """A Fraction when the entry is constant, else a sympy expression in ε."""
+    value = entry.as_expr()
     if value.is_Rational:
         return Fraction(int(value.p), int(value.q))
     return value
@@ -373,9 +372,11 @@ def _general_rows(coeffs: Sequence[Fraction]) -> tuple[list[list[Entry]], list[S
     """Exact rows with both special rules; returns rows, special rows, first zero-row index."""
     n = len(coeffs) - 1
     width = n // 2 + 1
-    rows: list[list[Entry]] = [
-        list(coeffs[0::2]) + [Fraction(0)] * (width - len(coeffs[0::2])),
-        list(coeffs[1::2]) + [Fraction(0)] * (width - len(coeffs[1::2])),
+    zero = _FIELD(0)
+    entries = [_FIELD(sp.Rational(c.numerator, c.denominator)) for c in coeffs]
+    rows: list[list] = [
+        entries[0::2] + [zero] * (width - len(entries[0::2])),
+        entries[1::2] + [zero] * (width - len(entries[1::2])),
     ][: n + 1]
     special: list[SpecialRow] = []
     first_aux: int | None = None
@@ -385,8 +386,7 @@ def _general_rows(coeffs: Sequence[Fraction]) -> tuple[list[list[Entry]], list[S
             a, b = rows[m - 2], rows[m - 1]
             b0 = b[0]
             rows.append(
-                [_simplify((b0 * a[j + 1] - a[0] * b[j + 1]) / b0) for j in range(width - 1)]
-                + [Fraction(0)]
+                [(b0 * a[j + 1] - a[0] * b[j + 1]) / b0 for j in range(width - 1)] + [zero]
             )
         row = rows[m]
         if all(_is_zero(e) for e in row):
@@ -395,15 +395,15 @@ def _general_rows(coeffs: Sequence[Fraction]) -> tuple[list[list[Entry]], list[S
             aux = [above[j] for j in range(k // 2 + 1)]
             aux_coeffs: list[Entry] = []
             for c in aux:
-                aux_coeffs += [c, Fraction(0)]
+                aux_coeffs += [_from_field(c), Fraction(0)]
             special.append(SpecialRow(power, "zero_row", tuple(aux_coeffs[: k + 1])))
             rows[m] = [(k - 2 * j) * aux[j] for j in range(len(aux))]
-            rows[m] += [Fraction(0)] * (width - len(rows[m]))
+            rows[m] += [zero] * (width - len(rows[m]))
             if first_aux is None:
                 first_aux = m - 1
         if _is_zero(rows[m][0]):
             special.append(SpecialRow(power, "zero_leading"))
-            rows[m][0] = EPSILON
+            rows[m][0] = _EPS
     return rows, special, (first_aux if first_aux is not None else -1)
 
 
@@ -484,6 +484,7 @@ def _tabulate(coeffs: Sequence[Fraction]):
     if first_aux >= 0:
         aux_degree = n - first_aux
         imaginary = aux_degree - 2 * _count_changes(signs[first_aux:])
+    rows = [[_from_field(e) for e in row] for row in rows]
     return rows, special, signs, RootCounts(changes, imaginary, n - changes - imaginary)
 
 
@@ -501,7 +502,7 @@ def _counts_by_factors(coeffs: Sequence[Fraction]) -> RootCounts | None:
     g = sp.gcd(p, p.compose(sp.Poly(-_S, _S, domain=sp.QQ)))
     if g.degree() <= 0:
         return None
-    parts = [(sp.quo(p, g), 1)] + list(g.sqf_list()[1])
+    parts = [(sp.quo(p, g), 1), *g.sqf_list()[1]]
     right = axis = left = 0
     for factor, multiplicity in parts:
         if factor.degree() <= 0:

@@ -397,6 +397,14 @@ def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
     return ("stable", None, count, "")
 
 
+def worst_root_angle_many(family: UncertainPolynomial, points: Sequence[Sequence[Fraction]]) -> np.ndarray:
+    """Float screening scores (positive: unstable) at many points; guidance only."""
+    from .search import batch_worst_angle
+
+    array = np.array([[float(x) for x in p] for p in points])
+    return batch_worst_angle(family.coefficients_float(array))
+
+
 def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, result, seed: int):
     heap: list[tuple[Fraction, int, Box, int, object]] = [(-Fraction(1), 0, box, 0, None)]
     counter = 1
@@ -446,7 +454,10 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
         return result("stable", "subdivision", proven=proven, depth=max_depth,
                       reason=f"{proven} sub-boxes, each proven by its own overbound + Kharitonov")
     unresolved = 1 - proven_volume
-    largest = heap[0][2]
+    # among the largest boxes left, name the one whose centre is closest to instability
+    top = [entry for entry in heap if entry[0] == heap[0][0]][:256]
+    scores = worst_root_angle_many(family, [entry[2].center for entry in top])
+    largest = top[int(np.argmax(scores))][2]
     return result("undecided", "subdivision", unresolved=unresolved, largest=largest,
                   proven=proven, depth=max_depth,
                   reason=f"budget exhausted after {budget.boxes} boxes and {budget.elapsed():.1f} s; "

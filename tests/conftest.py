@@ -1,0 +1,22 @@
+"""Shared test configuration: one hypothesis profile for every run (local and CI)."""
+
+from __future__ import annotations
+
+from hypothesis import settings
+
+# No deadline: exact arithmetic and the sympy references vary in time with the example, and
+# a 2-core CI machine is slow; 100 examples is hypothesis' own default, kept explicit here.
+settings.register_profile("ci", deadline=None, max_examples=100)
+settings.load_profile("ci")
+
+# When a property fails, hypothesis' pytest plugin imports its patch writer, which imports
+# libcst, which triggers a DeprecationWarning (mypy_extensions.TypedDict); with
+# filterwarnings = error that turns the failure report into an INTERNALERROR that hides the
+# falsifying example. Importing it once here, with that warning silenced, keeps reports readable.
+import contextlib  # noqa: E402
+import warnings  # noqa: E402
+
+# ImportError: libcst missing, hypothesis then skips the patch and there is nothing to do
+with warnings.catch_warnings(), contextlib.suppress(ImportError):
+    warnings.simplefilter("ignore", DeprecationWarning)
+    import hypothesis.extra._patching  # noqa: F401

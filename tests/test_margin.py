@@ -1,0 +1,377 @@
+"""Tests for robust.margin: the robust margin rho* and the decay-rate margin sigma*.
+
+Truth comes from outside the project:
+
+* degree-3 interval families, where rho* solves one quadratic: the degree-3 Hurwitz
+  condition (all a_i > 0 and a2*a1 > a3*a0; Gantmacher, "The Theory of Matrices", vol. 2,
+  1959, ch. XV, from memory) applied to the single Kharitonov polynomial that matters for
+  n = 3 (Anderson, Jury & Mansour, "On robust Hurwitz polynomials", IEEE TAC 32, 1987;
+  Kharitonov 1978), solved in exact arithmetic here (fractions + sympy);
+* products of first-order factors (s + a)(s + b)(s + c) and a damped pair, whose slowest
+  root is known in closed form (a root at -a has decay rate a; common practice, no source);
+* for every witness: the polynomial rebuilt with sympy from the case text (Meurer et al.,
+  "SymPy: symbolic computing in Python", PeerJ Comput. Sci. 2017) and its roots found by
+  mpmath at 50 digits (Johansson et al., mpmath, 2013-).
+"""
+
+from __future__ import annotations
+
+import random
+from fractions import Fraction
+
+import mpmath
+import pytest
+import sympy as sp
+from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import strategies as st
+
+from robust.case import parse_case
+from robust.margin import check_requirements, decay_rate, margin, shifted_family
+from robust.verdict import decide
+
+# -- building cases and checking answers independently ------------------------------------
+
+
+def _case_text(parameters: dict[str, dict[str, object]], coefficients: list[str] | None = None,
+               expression: str | None = None, requirements: dict[str, str] | None = None) -> str:
+    """TOML text of a case (DESIGN.md section 4); numbers as strings, so they stay exact."""
+    lines = ['title = "margin test case"']
+    for name, spec in parameters.items():
+        lines.append(f"[parameters.{name}]")
+        for key, value in spec.items():
+            if isinstance(value, (list, tuple)):
+                lines.append(f"{key} = [" + ", ".join(f'"{v}"' for v in value) + "]")
+            else:
+                lines.append(f'{key} = "{value}"')
+    lines.append("[polynomial]")
+    if coefficients is not None:
+        lines.append("coefficients = [" + ", ".join(f'"{c}"' for c in coefficients) + "]")
+    else:
+        lines.append(f'expression = "{expression}"')
+    if requirements:
+        lines.append("[requirements]")
+        lines += [f"{k} = {v}" for k, v in requirements.items()]
+    return "\n".join(lines) + "\n"
+
+
+def _decimal(x: Fraction) -> str:
+    """Exact decimal text of a Fraction whose denominator divides a power of ten."""
+    text = f"{float(x):.10f}".rstrip("0").rstrip(".")
+    assert Fraction(text) == x, (x, text)
+    return text
+
+
+def _sympy_coefficients(formulas: list[str], names: list[str], point) -> list[sp.Rational]:
+    """The coefficient formulas of the case text evaluated by sympy at an exact point."""
+    symbols = {n: sp.Symbol(n) for n in names}
+    values = {symbols[n]: sp.Rational(v.numerator, v.denominator) for n, v in zip(names, point, strict=True)}
+    return [sp.nsimplify(sp.sympify(f.replace("^", "**"), locals=symbols).subs(values)) for f in formulas]
+
+
+def _max_real_part(coefficients) -> mpmath.mpf:
+    """Largest real part of the roots, by mpmath at 50 digits (an independent root finder)."""
+    coeffs = [mpmath.mpf(sp.Rational(c).p) / sp.Rational(c).q for c in coefficients]
+    while coeffs and coeffs[0] == 0:
+        coeffs.pop(0)
+    with mpmath.workdps(50):
+        roots = mpmath.polyroots(coeffs, maxsteps=400, extraprec=400)
+        return max(mpmath.re(r) for r in roots)
+
+
+def _witness_is_unstable(formulas, names, witness) -> bool:
+    """A root on or right of the imaginary axis (or a negative/zero leading coefficient)."""
+    coeffs = _sympy_coefficients(formulas, names, witness.point)
+    if coeffs[0] <= 0 < sum(1 for c in coeffs if c > 0):
+        return True  # a sign change in the coefficients: not Hurwitz (Stodola's condition)
+    return _max_real_part(coeffs) > -mpmath.mpf(10) ** -30
+
+
+# -- degree-3 interval families: rho* in closed form --------------------------------------
+
+
+def _closed_form_rho(nominal: list[Fraction], tol: list[Fraction]) -> sp.Expr:
+    """rho* of the interval family a_i in [n_i - rho t_i, n_i + rho t_i], i = 3..0.
+
+    The member least likely to satisfy a2*a1 > a3*a0 (degree-3 Hurwitz condition, Gantmacher
+    1959, ch. XV, from memory) takes a2, a1 low and a3, a0 high: the one Kharitonov
+    polynomial needed for n = 3 (Anderson, Jury & Mansour, IEEE TAC 32, 1987). Its condition
+    is (n2 - r t2)(n1 - r t1) = (n3 + r t3)(n0 + r t0), a quadratic A r^2 + B r + C = 0 with
+    B < 0 < C, whose least positive root is (-B - sqrt(B^2 - 4AC)) / (2A) for A != 0; and
+    the lower ends a3, a0 must stay positive (r < n_i / t_i).
+    """
+    n3, n2, n1, n0 = nominal
+    t3, t2, t1, t0 = tol
+    a = t2 * t1 - t3 * t0
+    b = -(n2 * t1 + n1 * t2) - (n3 * t0 + n0 * t3)
+    c = n2 * n1 - n3 * n0
+    q = lambda x: sp.Rational(x.numerator, x.denominator)  # noqa: E731
+    if a == 0:
+        root = q(-c / b)
+    else:
+        root = (-q(b) - sp.sqrt(q(b * b - 4 * a * c))) / (2 * q(a))
+    candidates = [root] + [q(n / t) for n, t in zip(nominal, tol, strict=True) if t > 0]
+    return min(candidates, key=lambda v: sp.N(v, 50))
+
+
+def _interval_case(nominal: list[Fraction], tol: list[Fraction]):
+    names = ["a3", "a2", "a1", "a0"]
+    params = {n: {"nominal": _decimal(v), "tolerance": _decimal(t)}
+              for n, v, t in zip(names, nominal, tol, strict=True)}
+    return parse_case(_case_text(params, coefficients=names))
+
+
+def _assert_margin_is(result, expected: sp.Expr) -> None:
+    bracket = result.margin
+    low = sp.Rational(bracket.lower.numerator, bracket.lower.denominator)
+    high = sp.Rational(bracket.upper.numerator, bracket.upper.denominator)
+    assert low <= expected <= high
+    assert bracket.relative_width <= 1e-9
+    assert bracket.exact is not None
+    value = sp.N(sp.sympify(bracket.exact), 30)
+    assert abs(value - sp.N(expected, 30)) <= sp.Float("1e-12", 30) * abs(sp.N(expected, 30))
+
+
+def test_interval_cubic_margin_is_the_root_of_the_kharitonov_quadratic():
+    """Our own cubic 1, 3, 4, 5 with tolerances 0.1, 0.5, 0.7, 0.9: rho* = 275/26 - 5 sqrt(2297)/26."""
+    nominal = [Fraction(1), Fraction(3), Fraction(4), Fraction(5)]
+    tol = [Fraction(1, 10), Fraction(1, 2), Fraction(7, 10), Fraction(9, 10)]
+    result = margin(_interval_case(nominal, tol), with_decay=False, max_seconds=10)
+    expected = _closed_form_rho(nominal, tol)
+    # (3 - r/2)(4 - 7r/10) = (1 + r/10)(5 + 9r/10) -> 0.26 r^2 - 5.5 r + 7 = 0 (worked by hand)
+    assert sp.simplify(expected - (sp.Rational(275, 26) - 5 * sp.sqrt(2297) / 26)) == 0
+    _assert_margin_is(result, expected)
+    assert result.method.startswith("exact")
+
+
+def test_interval_cubic_margin_stops_where_the_leading_coefficient_reaches_zero():
+    """When the lower end of a3 hits zero before the Hurwitz condition fails, rho* = n3 / t3."""
+    nominal = [Fraction(1), Fraction(10), Fraction(10), Fraction(1)]
+    tol = [Fraction(9, 10), Fraction(1, 10), Fraction(1, 10), Fraction(1, 10)]
+    result = margin(_interval_case(nominal, tol), with_decay=False, max_seconds=10)
+    assert _closed_form_rho(nominal, tol) == sp.Rational(10, 9)
+    _assert_margin_is(result, sp.Rational(10, 9))
+
+
+_cent = st.integers(1, 900).map(lambda k: Fraction(k, 100))
+
+
+@st.composite
+def stable_interval_cubics(draw):
+    """Nominal a3..a0 > 0 with a2 a1 > a3 a0 and tolerances of 2 % .. 60 % of nominal."""
+    n3, n2, n1, n0 = (draw(_cent) for _ in range(4))
+    assume(n2 * n1 > n3 * n0 * Fraction(21, 20))
+    tol = []
+    for n in (n3, n2, n1, n0):
+        pct = draw(st.integers(2, 60))
+        tol.append(Fraction(round(n * pct), 100) if round(n * pct) else Fraction(1, 100))
+    return [n3, n2, n1, n0], tol
+
+
+@settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.too_slow,
+                                                                  HealthCheck.filter_too_much])
+@given(stable_interval_cubics())
+def test_interval_cubic_margin_matches_the_closed_form(spec):
+    """For generated degree-3 interval families the bracket holds the exact closed-form rho*."""
+    nominal, tol = spec
+    result = margin(_interval_case(nominal, tol), with_decay=False, max_seconds=10)
+    _assert_margin_is(result, _closed_form_rho(nominal, tol))
+
+
+# -- generated affine / multilinear families: consistency ----------------------------------
+
+
+@st.composite
+def small_families(draw):
+    """(text, formulas, names) of a family of degree 3-4 in 2-3 parameters, affine or
+    multilinear, with a Hurwitz nominal: coefficients of a product of stable factors
+    s + r plus integer multiples of (p_j - 1) (every p_j has nominal 1)."""
+    degree = draw(st.integers(3, 4))
+    k = draw(st.integers(2, 3))
+    base = [Fraction(1)]
+    for _ in range(degree):
+        r = draw(st.integers(1, 4))
+        base = [a + r * b for a, b in zip([*base, Fraction(0)], [Fraction(0), *base], strict=True)]
+    multilinear = draw(st.booleans())
+    names = [f"p{j}" for j in range(k)]
+    formulas = []
+    for i, c in enumerate(base):
+        terms = [str(c)]
+        for j in range(k):
+            d = draw(st.integers(-2, 3))
+            if d:
+                terms.append(f"{d}*(p{j} - 1)")
+        if multilinear and i > 0:
+            e = draw(st.integers(-2, 2))
+            if e:
+                terms.append(f"{e}*(p0 - 1)*(p1 - 1)")
+        formulas.append(" + ".join(terms))
+    tolerances = [draw(st.sampled_from(["0.1", "0.2", "0.3", "0.5"])) for _ in range(k)]
+    params = {n: {"nominal": "1", "tolerance": t} for n, t in zip(names, tolerances, strict=True)}
+    return params, formulas, names
+
+
+def _decided_margin(params, formulas):
+    case = parse_case(_case_text(params, coefficients=formulas))
+    result = margin(case, cap=20, with_decay=False, max_seconds=3)
+    bracket = result.margin
+    if bracket.upper is None or bracket.note or bracket.lower == 0:
+        return case, None  # open or undecided bracket: nothing certified to compare
+    return case, bracket
+
+
+@pytest.mark.slow
+@settings(max_examples=12, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(small_families())
+def test_margin_bracket_is_proven_below_and_refuted_above(spec):
+    """decide says stable at box(0.999 lower) and unstable at box(upper); the witness lies in
+    box(upper) and has a root on or right of the imaginary axis (mpmath)."""
+    params, formulas, names = spec
+    case, bracket = _decided_margin(params, formulas)
+    assume(bracket is not None)
+    family = case.family
+    inner = family.box.scaled(family.nominal, bracket.lower * Fraction(999, 1000))
+    outer = family.box.scaled(family.nominal, bracket.upper)
+    assert decide(family, inner, max_seconds=5, max_boxes=2000).verdict == "stable"
+    assert decide(family, outer, max_seconds=5, max_boxes=2000).verdict == "unstable"
+    assert bracket.witness is not None
+    assert outer.contains(bracket.witness.point)
+    assert _witness_is_unstable(formulas, names, bracket.witness)
+
+
+@pytest.mark.slow
+@settings(max_examples=8, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(small_families(), st.data())
+def test_widening_one_tolerance_never_raises_the_margin(spec, data):
+    """box'(rho) contains box(rho) when one tolerance widens, so lower_new <= upper_old."""
+    params, formulas, _ = spec
+    _, old = _decided_margin(params, formulas)
+    assume(old is not None)
+    name = data.draw(st.sampled_from(sorted(params)))
+    wider = {n: dict(p) for n, p in params.items()}
+    wider[name]["tolerance"] = _decimal(Fraction(params[name]["tolerance"]) * Fraction(3, 2))
+    new = margin(parse_case(_case_text(wider, coefficients=formulas)), cap=20, with_decay=False,
+                 max_seconds=3).margin
+    assert new.lower <= old.upper
+
+
+def test_unstable_nominal_gives_a_zero_margin():
+    """A design unstable at nominal has rho* = 0 (a bracket [0, 0])."""
+    case = parse_case(_case_text({"k": {"nominal": "20", "tolerance": "1"}},
+                                 coefficients=["1", "2", "3", "k"]))  # 2*3 < 20
+    result = margin(case, with_decay=False, max_seconds=5)
+    assert (result.margin.lower, result.margin.upper) == (0, 0)
+
+
+# -- decay rate ---------------------------------------------------------------------------
+
+
+def _assert_bracket_holds(bracket, expected: Fraction) -> None:
+    assert bracket.upper is not None
+    assert bracket.lower <= expected <= bracket.upper
+    # a repeated slowest root (equal low ends) can stop the bisection early: then it must say so
+    assert float(bracket.upper - bracket.lower) <= 1e-5 * float(expected) or "wider" in bracket.note
+
+
+_low_end = st.integers(2, 40).map(lambda k: Fraction(k, 10))
+_width = st.integers(1, 20).map(lambda k: Fraction(k, 10))
+
+
+@settings(max_examples=6, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.lists(st.tuples(_low_end, _width), min_size=3, max_size=3))
+def test_decay_rate_of_first_order_factors_is_the_smallest_low_end(ranges):
+    """For (s + a)(s + b)(s + c) with a, b, c in ranges, sigma* is the least lower end."""
+    params = {n: {"range": [_decimal(lo), _decimal(lo + w)]} for n, (lo, w) in zip("abc", ranges, strict=True)}
+    case = parse_case(_case_text(params, expression="(s + a)*(s + b)*(s + c)"))
+    result = decay_rate(case.family, max_seconds=4)
+    # the root -a of the factor s + a decays at rate a (common practice, no source)
+    expected = min(lo for lo, _ in ranges)
+    _assert_bracket_holds(result.bracket, expected)
+    assert result.settling_time() == pytest.approx(4 / float(result.bracket.lower), rel=1e-12)
+
+
+def test_decay_rate_of_a_damped_pair_is_its_least_damping():
+    """(s^2 + 2 z s + w)(s + 3), z in [0.5, 1], w in [9, 16]: roots -z +- j sqrt(w - z^2), -3, so sigma* = 1/2."""
+    params = {"z": {"range": ["0.5", "1"]}, "w": {"range": ["9", "16"]}}
+    case = parse_case(_case_text(params, expression="(s^2 + 2*z*s + w)*(s + 3)"))
+    assert case.family.structure == "affine"  # the shifted family is decided by its edges
+    result = decay_rate(case.family, max_seconds=10)
+    _assert_bracket_holds(result.bracket, Fraction(1, 2))
+    assert not result.bracket.note
+    # settling time to 2 % about 4/sigma (common practice, no source): 8 s here
+    assert result.settling_time() == pytest.approx(8.0, rel=1e-5)
+
+
+def test_shifted_family_moves_every_root_by_sigma():
+    """p(s - sigma) at a point has the roots of p moved right by sigma (checked with mpmath)."""
+    params = {"a": {"range": ["1", "2"]}, "b": {"range": ["3", "4"]}}
+    case = parse_case(_case_text(params, expression="(s + a)*(s^2 + b*s + 7)"))
+    shifted = shifted_family(case.family, Fraction(1, 3))
+    point = (Fraction(3, 2), Fraction(7, 2))
+    original = _max_real_part(case.family.coefficients_at(point))
+    moved = _max_real_part(shifted.coefficients_at(point))
+    assert abs(moved - (original + mpmath.mpf(1) / 3)) < 1e-12
+
+
+# -- requirements -------------------------------------------------------------------------
+
+
+def _requirement_case(margin_req: str, decay_req: str):
+    params = {"a": {"range": ["0.7", "1.3"]}, "b": {"range": ["1.5", "2.5"]}}
+    return parse_case(_case_text(params, expression="(s + a)*(s + b)*(s + 3)",
+                                 requirements={"margin": margin_req, "decay_rate": decay_req}))
+
+
+def test_requirements_that_hold_pass():
+    """rho* = 10/3 (a reaches 0) and sigma* = 0.7: margin 3 and decay rate 0.6 pass."""
+    case = _requirement_case("3", "0.6")
+    result = margin(case, max_seconds=10)
+    assert result.passed is True and result.decay.passed is True
+    assert result.margin.lower <= Fraction(10, 3) <= result.margin.upper
+    checks = {r.name: r.passed for r in check_requirements(case, max_seconds=10)}
+    assert checks == {"margin": True, "decay_rate": True}
+
+
+def test_requirements_that_fail_are_reported_failed():
+    """rho* = 10/3 and sigma* = 0.7: margin 3.5 and decay rate 0.75 fail, with witnesses."""
+    case = _requirement_case("3.5", "0.75")
+    result = margin(case, max_seconds=10)
+    assert result.passed is False and result.decay.passed is False
+    checks = {r.name: r for r in check_requirements(case, max_seconds=10)}
+    assert {n: r.passed for n, r in checks.items()} == {"margin": False, "decay_rate": False}
+    family = case.family
+    grown = checks["margin"].witness.point
+    assert family.box.scaled(family.nominal, Fraction(7, 2)).contains(grown)
+    assert _max_real_part(family.coefficients_at(grown)) > -mpmath.mpf(10) ** -30
+    slow = checks["decay_rate"].witness.point
+    assert family.box.contains(slow)
+    assert _max_real_part(family.coefficients_at(slow)) > -mpmath.mpf(3) / 4
+
+
+def test_margin_result_json_has_the_documented_keys():
+    """as_dict has margin {lower, upper}, exact and decay_rate {lower, upper} (DESIGN.md 5)."""
+    data = margin(_requirement_case("3", "0.6"), max_seconds=10).as_dict()
+    assert set(data["margin"]) == {"lower", "upper"}
+    assert data["margin"]["lower"] <= 10 / 3 <= data["margin"]["upper"]
+    assert data["exact"] is None or isinstance(data["exact"], str)
+    assert data["decay_rate"]["lower"] <= 0.7 <= data["decay_rate"]["upper"]
+
+
+def test_float_ends_of_the_bracket_are_rounded_outwards():
+    """The JSON floats never claim more than the exact bracket: lower down, upper up."""
+    nominal = [Fraction(1), Fraction(3), Fraction(4), Fraction(5)]
+    tol = [Fraction(1, 10), Fraction(1, 2), Fraction(7, 10), Fraction(9, 10)]
+    result = margin(_interval_case(nominal, tol), with_decay=False, max_seconds=10)
+    data = result.as_dict()["margin"]
+    assert Fraction(data["lower"]) <= result.margin.lower
+    assert Fraction(data["upper"]) >= result.margin.upper
+
+
+def test_margin_is_reproducible_between_runs():
+    """Two margin runs of the same case give the same bracket (seeded searches only)."""
+    random.seed(12345)  # a different global seed must not change anything
+    params, formulas = {"p0": {"nominal": "1", "tolerance": "0.3"}, "p1": {"nominal": "1", "tolerance": "0.2"}}, [
+        "1", "6 + 2*(p0 - 1)", "11 - 2*(p1 - 1) + 1*(p0 - 1)*(p1 - 1)", "6 + 3*(p0 - 1) + 3*(p1 - 1)"]
+    first = margin(parse_case(_case_text(params, coefficients=formulas)), with_decay=False, max_seconds=5)
+    random.seed(54321)
+    second = margin(parse_case(_case_text(params, coefficients=formulas)), with_decay=False, max_seconds=5)
+    assert (first.margin.lower, first.margin.upper) == (second.margin.lower, second.margin.upper)
