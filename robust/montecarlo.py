@@ -76,7 +76,7 @@ def draw_parameters(case, n: int, rng: np.random.Generator) -> np.ndarray:
     return np.stack(columns, axis=1)
 
 
-def float_routh_screen(coefficients: np.ndarray, safety: float = 1e6) -> tuple[np.ndarray, np.ndarray]:
+def float_routh_screen(coefficients: np.ndarray, safety: float = 1e11) -> tuple[np.ndarray, np.ndarray]:
     """Vectorised float Routh test of each row (highest power first).
 
     Returns (stable, clear): ``clear`` is False where some first-column entry is too small
@@ -115,8 +115,11 @@ def float_routh_screen(coefficients: np.ndarray, safety: float = 1e6) -> tuple[n
             new = np.zeros_like(a)
             new[:, :-1] = (b0 * a[:, 1:] - a[:, :1] * b[:, 1:]) / b0
             mag = np.zeros_like(a)
-            mag[:, :-1] = (np.abs(b0) * a_mag[:, 1:] + np.abs(a[:, :1]) * b_mag[:, 1:]) / np.abs(b0) \
-                + a_mag[:, 1:]
+            # first-order error bound of a1 - a0 b1 / b0: the errors of a1, a0, b1 and of the
+            # divisor b0 (a small b0 from an earlier cancellation magnifies the last two)
+            ratio = np.abs(b[:, 1:] / b0)
+            mag[:, :-1] = 2 * a_mag[:, 1:] + ratio * a_mag[:, :1] \
+                + np.abs(a[:, :1] / b0) * (b_mag[:, 1:] + ratio * b_mag[:, :1])
             lead = new[:, 0]
             ok = np.isfinite(lead)
             uncertain = ~ok | (np.abs(lead) <= eps * np.maximum(mag[:, 0], 1e-300))
