@@ -144,3 +144,29 @@ def known_root_polynomials(draw, max_degree: int = 12, origin: bool = True) -> R
         pairs += extra_pairs
     scale = draw(nonzero_fractions)
     return RootSpec(tuple(real), tuple(pairs), scale)
+
+
+def case_toml(parameters, coefficients=None, expression=None, requirements=None,
+              title="test case") -> str:
+    """TOML text of a case (DESIGN.md section 4); numbers are written as strings, so exact.
+
+    ``parameters`` maps a name to its keys (lists become TOML arrays of strings); give either
+    ``coefficients`` (highest power first) or ``expression``.
+    """
+    lines = [f'title = "{title}"']
+    for name, spec in parameters.items():
+        lines.append(f"[parameters.{name}]")
+        for key, value in spec.items():
+            if isinstance(value, (list, tuple)):
+                lines.append(f"{key} = [" + ", ".join(f'"{v}"' for v in value) + "]")
+            else:
+                lines.append(f'{key} = "{value}"')
+    lines.append("[polynomial]")
+    if coefficients is not None:
+        lines.append("coefficients = [" + ", ".join(f'"{c}"' for c in coefficients) + "]")
+    else:
+        lines.append(f'expression = "{expression}"')
+    if requirements:
+        lines.append("[requirements]")
+        lines += [f"{k} = {v}" for k, v in requirements.items()]
+    return "\n".join(lines) + "\n"

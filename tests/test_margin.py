@@ -24,6 +24,7 @@ import pytest
 import sympy as sp
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
+from strategies import case_toml
 
 from robust.case import parse_case
 from robust.margin import check_requirements, decay_rate, margin, shifted_family
@@ -34,24 +35,8 @@ from robust.verdict import decide
 
 def _case_text(parameters: dict[str, dict[str, object]], coefficients: list[str] | None = None,
                expression: str | None = None, requirements: dict[str, str] | None = None) -> str:
-    """TOML text of a case (DESIGN.md section 4); numbers as strings, so they stay exact."""
-    lines = ['title = "margin test case"']
-    for name, spec in parameters.items():
-        lines.append(f"[parameters.{name}]")
-        for key, value in spec.items():
-            if isinstance(value, (list, tuple)):
-                lines.append(f"{key} = [" + ", ".join(f'"{v}"' for v in value) + "]")
-            else:
-                lines.append(f'{key} = "{value}"')
-    lines.append("[polynomial]")
-    if coefficients is not None:
-        lines.append("coefficients = [" + ", ".join(f'"{c}"' for c in coefficients) + "]")
-    else:
-        lines.append(f'expression = "{expression}"')
-    if requirements:
-        lines.append("[requirements]")
-        lines += [f"{k} = {v}" for k, v in requirements.items()]
-    return "\n".join(lines) + "\n"
+    """TOML text of a case (see strategies.case_toml)."""
+    return case_toml(parameters, coefficients, expression, requirements, title="margin test case")
 
 
 def _decimal(x: Fraction) -> str:

@@ -21,6 +21,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from scipy import stats
+from strategies import case_toml
 
 from robust.case import parse_case
 from robust.montecarlo import draw_parameters, estimate_yield, float_routh_screen
@@ -28,18 +29,8 @@ from robust.routh import is_hurwitz
 
 
 def _case_text(parameters: dict[str, dict[str, str]], coefficients: list[str]) -> str:
-    """TOML text of a case (DESIGN.md section 4); numbers as strings, so they stay exact."""
-    lines = ['title = "yield test case"']
-    for name, spec in parameters.items():
-        lines.append(f"[parameters.{name}]")
-        for key, value in spec.items():
-            if isinstance(value, (list, tuple)):
-                lines.append(f"{key} = [" + ", ".join(f'"{v}"' for v in value) + "]")
-            else:
-                lines.append(f'{key} = "{value}"')
-    lines.append("[polynomial]")
-    lines.append("coefficients = [" + ", ".join(f'"{c}"' for c in coefficients) + "]")
-    return "\n".join(lines) + "\n"
+    """TOML text of a case (see strategies.case_toml)."""
+    return case_toml(parameters, coefficients, title="yield test case")
 
 
 def _clopper_pearson(stable: int, n: int, confidence: float = 0.95) -> tuple[float, float]:
@@ -234,6 +225,9 @@ def test_screen_on_known_rows_matches_mpmath_roots():
         np.polymul([1, 0.0, 1.0], [1, 3.0]),  # (s^2 + 1)(s + 3): boundary
         np.polymul([1, 0.0, 4e10], [1, 1e-4]),  # (s^2 + 4e10)(s + 1e-4): boundary, badly scaled
         np.array([1e-12, 1e-6, 1.0, 1e6]),  # a2 a1 = 1e-6 = a3 a0 up to binary rounding
+        # (s^2 + 1)(s + 1e-3)^2 rounded: a pair at Re = +8e-20 behind two cancellations
+        # (found by hypothesis; the screen once called it clear and stable)
+        np.array([1.0, 0.002, 1.000001, 0.002, 1e-06]),
     ]
     for row in rows:
         stable, clear = float_routh_screen(row[None, :])

@@ -22,6 +22,7 @@ import pytest
 import sympy as sp
 from hypothesis import HealthCheck, event, given, settings
 from hypothesis import strategies as st
+from strategies import case_toml
 
 from robust.case import load_case, parse_case
 from robust.family import Box
@@ -39,21 +40,8 @@ def _case_text(
     coefficients: list[str] | None = None,
     expression: str | None = None,
 ) -> str:
-    """TOML text of a case (DESIGN.md section 4); numbers are written as strings, so exact."""
-    lines = ['title = "verdict test case"']
-    for name, spec in parameters.items():
-        lines.append(f"[parameters.{name}]")
-        for key, value in spec.items():
-            if isinstance(value, (list, tuple)):
-                lines.append(f"{key} = [" + ", ".join(f'"{v}"' for v in value) + "]")
-            else:
-                lines.append(f'{key} = "{value}"')
-    lines.append("[polynomial]")
-    if coefficients is not None:
-        lines.append("coefficients = [" + ", ".join(f'"{c}"' for c in coefficients) + "]")
-    else:
-        lines.append(f'expression = "{expression}"')
-    return "\n".join(lines) + "\n"
+    """TOML text of a case (see strategies.case_toml)."""
+    return case_toml(parameters, coefficients, expression, title="verdict test case")
 
 
 def _make(parameters, coefficients=None, expression=None):
