@@ -86,14 +86,17 @@ def main() -> None:
         width = b.relative_width
         rows.append((label, case.family.structure, times[0], statistics.median(times),
                      float(b.lower), None if b.upper is None else float(b.upper), width,
-                     b.exact is not None, result.method))
+                     b.exact is not None, result.method, b.note))
     print(f"{'family':<38} {'class':<12} {'first s':>8} {'median s':>9} {'lower':>12} {'upper':>12} "
           f"{'rel width':>10} {'exact':>6}  method")
-    for label, kind, first, median, lower, upper, width, exact, method in rows:
+    for label, kind, first, median, lower, upper, width, exact, method, _ in rows:
         up = "open" if upper is None else f"{upper:.9g}"
         wd = "-" if width is None else f"{width:.2e}"
         print(f"{label:<38} {kind:<12} {first:8.3f} {median:9.3f} {lower:12.9g} {up:>12} {wd:>10} "
               f"{'yes' if exact else 'no':>6}  {method}")
+    for row in rows:
+        if row[9]:
+            print(f"note ({row[0]}): {row[9]}")
     interval = rows[0]
     verdict = "met" if interval[3] < TARGET_INTERVAL_SECONDS else "MISSED"
     print(f"\ntarget: degree-10 interval margin under {TARGET_INTERVAL_SECONDS} s (median of 5): {verdict}"

@@ -27,6 +27,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 
 import sympy as sp
+from sympy.polys.matrices import DomainMatrix
 
 from .edges import hurwitz_matrix
 from .exact import format_fraction
@@ -155,34 +156,39 @@ def _crossing_polys(coeffs: Sequence[sp.Expr]) -> list[sp.Poly]:
     n = len(coeffs) - 1
     out = [sp.Poly(sp.expand(coeffs[-1]), _R), sp.Poly(sp.expand(coeffs[0]), _R)]
     if n >= 2:
-        out.append(sp.Poly(sp.expand(hurwitz_matrix(list(coeffs), n - 1).det(method="berkowitz")), _R))
+        # the determinant in exact polynomial arithmetic over QQ[r]: sympy's expression-level
+        # Berkowitz + expand takes minutes at degree 10 (and ignores every time budget)
+        ring = sp.QQ[_R]
+        matrix = DomainMatrix.from_Matrix(hurwitz_matrix([sp.expand(c) for c in coeffs], n - 1))
+        out.append(sp.Poly(ring.to_sympy(matrix.convert_to(ring).det()), _R))
     return out
 
 
 def _first_root(polys: Sequence[sp.Poly], cap: Fraction) -> tuple[sp.Expr, Fraction, Fraction] | None:
     """Least real root in (0, cap] over the polynomials: (exact root, isolating low, high)."""
     sup = sp.Rational(cap.numerator, cap.denominator)
-    best = None
+    firsts = []
     for poly in polys:
         if poly.is_zero or poly.degree() <= 0:
             continue
-        if not any(hi > 0 for (lo, hi), _ in poly.intervals(inf=0, sup=sup)):
-            continue  # no root in (0, cap] (a root at 0 cannot happen for a stable start)
-        # isolating intervals of different polynomials overlap in general, so their ends do
-        # not order the roots: compare the least positive roots themselves
-        roots = [r for r in poly.real_roots() if 0 < r <= sup]
-        if not roots:
-            continue
-        values = [r.evalf(40) for r in roots]
-        i = min(range(len(roots)), key=lambda j: values[j])
-        if best is None or values[i] < best[0]:
-            best = (values[i], poly, roots[i])
-    if best is None:
+        for (lo, hi), _ in poly.intervals(inf=0, sup=sup):
+            if hi <= 0:
+                continue  # the root at 0 (cannot happen for a stable start)
+            # isolating intervals of different polynomials overlap in general, so their
+            # coarse ends do not order the roots: refine each least positive root first
+            if lo != hi:
+                lo, hi = poly.refine_root(lo, hi, eps=hi * sp.Rational(1, 10**20))
+            firsts.append((Fraction(int(lo.p), int(lo.q)), Fraction(int(hi.p), int(hi.q)), poly))
+            break  # intervals come sorted: the first positive one is the least
+    if not firsts:
         return None
-    _, poly, root = best
+    lo_min, _, poly = min(firsts, key=lambda f: f[0])
+    hi_min = min(f[1] for f in firsts)  # the least root lies in [least low end, least high end]
+    roots = [r for r in poly.real_roots() if r > 0]
+    root = min(roots, key=lambda r: float(r.evalf(30)))
     # refine the isolating interval to ~1e-15 relative
     lo_f, hi_f = _refine(poly, root)
-    return root, lo_f, hi_f
+    return root, min(lo_f, lo_min), min(hi_f, hi_min)
 
 
 def _refine(poly: sp.Poly, root: sp.Expr) -> tuple[Fraction, Fraction]:

@@ -76,7 +76,7 @@ def draw_parameters(case, n: int, rng: np.random.Generator) -> np.ndarray:
     return np.stack(columns, axis=1)
 
 
-def float_routh_screen(coefficients: np.ndarray, safety: float = 1e11) -> tuple[np.ndarray, np.ndarray]:
+def float_routh_screen(coefficients: np.ndarray, safety: float = 1e6) -> tuple[np.ndarray, np.ndarray]:
     """Vectorised float Routh test of each row (highest power first).
 
     Returns (stable, clear): ``clear`` is False where some first-column entry is too small

@@ -90,10 +90,7 @@ def _closed_form_rho(nominal: list[Fraction], tol: list[Fraction]) -> sp.Expr:
     b = -(n2 * t1 + n1 * t2) - (n3 * t0 + n0 * t3)
     c = n2 * n1 - n3 * n0
     q = lambda x: sp.Rational(x.numerator, x.denominator)  # noqa: E731
-    if a == 0:
-        root = q(-c / b)
-    else:
-        root = (-q(b) - sp.sqrt(q(b * b - 4 * a * c))) / (2 * q(a))
+    root = q(-c / b) if a == 0 else (-q(b) - sp.sqrt(q(b * b - 4 * a * c))) / (2 * q(a))
     candidates = [root] + [q(n / t) for n, t in zip(nominal, tol, strict=True) if t > 0]
     return min(candidates, key=lambda v: sp.N(v, 50))
 
@@ -265,7 +262,8 @@ _width = st.integers(1, 20).map(lambda k: Fraction(k, 10))
 @given(st.lists(st.tuples(_low_end, _width), min_size=3, max_size=3))
 def test_decay_rate_of_first_order_factors_is_the_smallest_low_end(ranges):
     """For (s + a)(s + b)(s + c) with a, b, c in ranges, sigma* is the least lower end."""
-    params = {n: {"range": [_decimal(lo), _decimal(lo + w)]} for n, (lo, w) in zip("abc", ranges, strict=True)}
+    params = {n: {"range": [_decimal(lo), _decimal(lo + w)]}
+              for n, (lo, w) in zip("abc", ranges, strict=True)}
     case = parse_case(_case_text(params, expression="(s + a)*(s + b)*(s + c)"))
     result = decay_rate(case.family, max_seconds=4)
     # the root -a of the factor s + a decays at rate a (common practice, no source)
@@ -275,7 +273,7 @@ def test_decay_rate_of_first_order_factors_is_the_smallest_low_end(ranges):
 
 
 def test_decay_rate_of_a_damped_pair_is_its_least_damping():
-    """(s^2 + 2 z s + w)(s + 3), z in [0.5, 1], w in [9, 16]: roots -z +- j sqrt(w - z^2), -3, so sigma* = 1/2."""
+    """(s^2 + 2 z s + w)(s + 3), z in [0.5, 1], w in [9, 16]: slowest roots -z +- j..., so sigma* = 1/2."""
     params = {"z": {"range": ["0.5", "1"]}, "w": {"range": ["9", "16"]}}
     case = parse_case(_case_text(params, expression="(s^2 + 2*z*s + w)*(s + 3)"))
     assert case.family.structure == "affine"  # the shifted family is decided by its edges
@@ -354,7 +352,8 @@ def test_float_ends_of_the_bracket_are_rounded_outwards():
 def test_margin_is_reproducible_between_runs():
     """Two margin runs of the same case give the same bracket (seeded searches only)."""
     random.seed(12345)  # a different global seed must not change anything
-    params, formulas = {"p0": {"nominal": "1", "tolerance": "0.3"}, "p1": {"nominal": "1", "tolerance": "0.2"}}, [
+    params = {"p0": {"nominal": "1", "tolerance": "0.3"}, "p1": {"nominal": "1", "tolerance": "0.2"}}
+    formulas = [
         "1", "6 + 2*(p0 - 1)", "11 - 2*(p1 - 1) + 1*(p0 - 1)*(p1 - 1)", "6 + 3*(p0 - 1) + 3*(p1 - 1)"]
     first = margin(parse_case(_case_text(params, coefficients=formulas)), with_decay=False, max_seconds=5)
     random.seed(54321)

@@ -232,8 +232,9 @@ def test_screen_on_known_rows_matches_mpmath_roots():
     for row in rows:
         stable, clear = float_routh_screen(row[None, :])
         with mpmath.workdps(60):
-            roots = mpmath.polyroots([mpmath.mpf(Fraction(float(x)).numerator) / Fraction(float(x)).denominator
-                                      for x in row], maxsteps=500, extraprec=500)
+            exact = [Fraction(float(x)) for x in row]
+            roots = mpmath.polyroots([mpmath.mpf(q.numerator) / q.denominator for q in exact],
+                                     maxsteps=500, extraprec=500)
             worst = max(mpmath.re(z) for z in roots)
             truth = worst < -mpmath.mpf(10) ** -40
         assert truth == _exact_hurwitz(row)

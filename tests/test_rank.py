@@ -87,7 +87,7 @@ def _assert_alone_is(bracket, expected: sp.Expr | None, cap: int = 100) -> None:
 
 
 def test_margin_alone_of_a_parameter_in_three_coefficients():
-    """a = 1 + (K-1), 4 + 2(K-1), 5 - 3(K-1), 6 + 4(K-1), K = 1 +- 0.2: (4 + 2x)(5 - 3x) = (1 + x)(6 + 4x) at x = 0.2 r."""
+    """K = 1 +- 0.2 moves a_i = 1, 4, 5, 6 by (1, 2, -3, 4) x: lost at (4+2x)(5-3x) = (1+x)(6+4x)."""
     base, slopes = [1, 4, 5, 6], [1, 2, -3, 4]
     case = _one_parameter_case(base, slopes, [0, 0, 0, 0], Fraction(1, 5))
     expected = _alone_closed_form(base, slopes, Fraction(1, 5))
