@@ -34,9 +34,9 @@ from .edges import box_edges, check_segment
 from .exact import format_fraction
 from .family import Box, UncertainPolynomial
 from .interval import IntervalPolynomial, KharitonovResult, KharitonovVertex, kharitonov_test
-from .polynomials import as_intervals
+from .polynomials import Bound, as_intervals
 from .routh import RootCounts, is_hurwitz, routh_table
-from .search import search_witness, worst_root_angle
+from .search import batch_worst_angle, search_witness
 
 __all__ = [
     "DEFAULT_MAX_BOXES",
@@ -174,7 +174,11 @@ class _Budget:
 
 
 def _interval(family: UncertainPolynomial, box: Box) -> IntervalPolynomial:
-    bounds = family.bounds(box)
+    return _interval_of(family.bounds(box))
+
+
+def _interval_of(bounds: Sequence[Bound]) -> IntervalPolynomial:
+    """The interval polynomial of coefficient bounds (the overbound over their box)."""
     return IntervalPolynomial(tuple(b.low for b in bounds), tuple(b.high for b in bounds))
 
 
@@ -399,8 +403,6 @@ def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
 
 def worst_root_angle_many(family: UncertainPolynomial, points: Sequence[Sequence[Fraction]]) -> np.ndarray:
     """Float screening scores (positive: unstable) at many points; guidance only."""
-    from .search import batch_worst_angle
-
     array = np.array([[float(x) for x in p] for p in points])
     return batch_worst_angle(family.coefficients_float(array))
 
@@ -420,15 +422,14 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
         budget.boxes += 1
         max_depth = max(max_depth, depth)
         bounds, directions = family.bounds_and_directions(sub, known)
-        kh = kharitonov_test(IntervalPolynomial(tuple(b.low for b in bounds), tuple(b.high for b in bounds)))
+        kh = kharitonov_test(_interval_of(bounds))
         if kh.stable:
             proven_volume += -neg_vol
             proven += 1
         else:
             center = sub.center
             w = None
-            if worst_root_angle(family.coefficients_float(
-                    np.array([[float(x) for x in center]]))[0]) > -1e-6:
+            if worst_root_angle_many(family, [center])[0] > -1e-6:
                 w = _make_witness(family, center, "centre of a sub-box", box)
             if w is None and kh.reason in ("sign", "degree", "vertex"):
                 w = _realise_failure(family, sub, kh)
