@@ -16,8 +16,8 @@ import statistics
 import time
 from fractions import Fraction
 
-from robust.case import parse_case
-from robust.margin import margin
+from robust.model.case import parse_case
+from robust.analysis.margin import margin
 
 TARGET_INTERVAL_SECONDS = 0.2
 

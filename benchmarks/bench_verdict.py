@@ -3,7 +3,7 @@
 Run: ``python benchmarks/bench_verdict.py``. Not a test; prints a table.
 
 Three in-memory cases (our own numbers, written as case-file TOML and read with
-``robust.case.parse_case``):
+``robust.model.case.parse_case``):
 
 1. an interval family of degree 20 (one parameter per coefficient, a small relative spread
    about a Hurwitz polynomial built from factors); target under 50 ms;
@@ -23,9 +23,9 @@ import itertools
 import time
 from fractions import Fraction
 
-from robust.case import parse_case
-from robust.routh import is_hurwitz
-from robust.verdict import check
+from robust.model.case import parse_case
+from robust.exact.routh import is_hurwitz
+from robust.analysis.verdict import check
 
 
 def _case_text(title: str, parameters: dict[str, dict[str, str]], polynomial: str) -> str:

@@ -1,57 +1,80 @@
 """robust: prove or refute the stability of a feedback loop over its parts' tolerances.
 
-Architecture (imports flow downwards only; a module never imports one listed above it):
+Architecture: layers, one direction of flow (a layer imports only the layers above it here):
 
-    cli                      thin click layer: parse options, call the API, render
-    report, textout          rendering of results (text, JSON, Markdown/HTML, plots)
-    margin, rank, montecarlo margins, parameter ranking, yield
-    verdict, edges           the decision ladder: prove, refute with a witness, or undecided
-    graph                    dependency graph parameters -> coefficients -> Kharitonov vertices
-    interval                 interval polynomials and Kharitonov's theorem
-    family, case             the uncertain polynomial over a box; case files
-    routh, expr, exact       exact Routh array; safe formula parser; exact numbers
-    errors                   the error hierarchy
+    errors      the error hierarchy
+    exact/      the exact core, knows nothing of cases: numbers (the one module that imports
+                gmpy2), multivariate polynomials, the Routh array, Hurwitz determinants,
+                interval polynomials and Kharitonov's theorem
+    model/      what the user wrote: expr (safe parser), forms (text -> coefficients), case
+                (TOML), family (the uncertain polynomial over a box, physical limits), graph
+    analysis/   what we conclude: outcomes (the enums, the one validity rule and the one
+                pass/fail rule), edges, search, verdict (the ladder), margin, rank,
+                montecarlo, signoff (every analysis of a report)
+    render/     text, report blocks, html, markdown, figures, writer: no mathematics
+    cli         click only: options in, API call, render, exit code
 
 Results are frozen dataclasses; exact numbers stay ``fractions.Fraction`` until rendered.
+The public names below load on first use (PEP 562), so ``import robust`` stays cheap.
 """
 
 from __future__ import annotations
 
-__version__ = "0.1.0"
+import importlib
+from typing import TYPE_CHECKING, Any
 
-from .case import Case as Case
-from .case import load_case as load_case
-from .errors import CaseError as CaseError
-from .errors import FormulaError as FormulaError
-from .errors import InputError as InputError
-from .errors import RobustError as RobustError
-from .margin import margin as margin
-from .montecarlo import estimate_yield as estimate_yield
-from .rank import rank as rank
-from .routh import RootCounts as RootCounts
-from .routh import RouthTable as RouthTable
-from .routh import is_hurwitz as is_hurwitz
-from .routh import routh_table as routh_table
-from .verdict import CheckResult as CheckResult
-from .verdict import Witness as Witness
-from .verdict import check as check
+from ._version import __version__
 
-__all__ = [
-    "Case",
-    "CaseError",
-    "CheckResult",
-    "FormulaError",
-    "InputError",
-    "RobustError",
-    "RootCounts",
-    "RouthTable",
-    "Witness",
-    "__version__",
-    "check",
-    "estimate_yield",
-    "is_hurwitz",
-    "load_case",
-    "margin",
-    "rank",
-    "routh_table",
-]
+#: public name -> module that defines it
+_EXPORTS = {
+    "Case": "robust.model.case",
+    "CaseError": "robust.errors",
+    "CheckResult": "robust.analysis.verdict",
+    "FormulaError": "robust.errors",
+    "InputError": "robust.errors",
+    "RobustError": "robust.errors",
+    "RootCounts": "robust.exact.routh",
+    "RouthTable": "robust.exact.routh",
+    "Witness": "robust.analysis.verdict",
+    "check": "robust.analysis.verdict",
+    "estimate_yield": "robust.analysis.montecarlo",
+    "is_hurwitz": "robust.exact.routh",
+    "load_case": "robust.model.case",
+    "margin": "robust.analysis.margin",
+    "rank": "robust.analysis.rank",
+    "routh_table": "robust.model.forms",
+}
+
+__all__ = sorted([*_EXPORTS, "__version__"])
+
+if TYPE_CHECKING:
+    from .analysis.margin import margin as margin
+    from .analysis.montecarlo import estimate_yield as estimate_yield
+    from .analysis.rank import rank as rank
+    from .analysis.verdict import CheckResult as CheckResult
+    from .analysis.verdict import Witness as Witness
+    from .analysis.verdict import check as check
+    from .errors import CaseError as CaseError
+    from .errors import FormulaError as FormulaError
+    from .errors import InputError as InputError
+    from .errors import RobustError as RobustError
+    from .exact.routh import RootCounts as RootCounts
+    from .exact.routh import RouthTable as RouthTable
+    from .exact.routh import is_hurwitz as is_hurwitz
+    from .model.case import Case as Case
+    from .model.case import load_case as load_case
+    from .model.forms import routh_table as routh_table
+
+
+def __getattr__(name: str) -> Any:
+    """Load a public name on first use (PEP 562)."""
+    module = _EXPORTS.get(name)
+    if module is None:
+        raise AttributeError(f"module 'robust' has no attribute {name!r}")
+    value = getattr(importlib.import_module(module), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted([*globals(), *_EXPORTS])

@@ -15,10 +15,11 @@ from typing import Any
 
 import click
 
-from . import __version__
+from ._version import __version__
 from .errors import RobustError
-from .routh import RouthTable, routh_table
-from .textout import render_table
+from .exact.routh import RouthTable
+from .model.forms import routh_table
+from .render.text import render_table
 
 #: The example polynomial ``robust routh`` analyses when given none: the closed loop of a
 #: small speed-controlled fan (invented for the demo).
@@ -106,7 +107,7 @@ def _progress_printer(label: str):
 
 
 def _budget_options(func: Callable[..., Any]) -> Callable[..., Any]:
-    from .verdict import DEFAULT_MAX_BOXES, DEFAULT_MAX_SECONDS
+    from .analysis.verdict import DEFAULT_MAX_BOXES, DEFAULT_MAX_SECONDS
 
     func = click.option("--max-boxes", type=click.IntRange(min=1), default=DEFAULT_MAX_BOXES,
                         show_default=True, help="Budget: sub-boxes/edges to examine.")(func)
@@ -129,10 +130,10 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
     Exit code 0: robustly stable (and requirements met); 1: unstable, undecided or a
     requirement failed; 2: bad input.
     """
-    from .case import load_case
-    from .margin import check_requirements
-    from .textout import render_check, render_requirements
-    from .verdict import check
+    from .model.case import load_case
+    from .analysis.requirements import check_requirements
+    from .render.text import render_check, render_requirements
+    from .analysis.verdict import check
 
     loaded = load_case(case)
     report, finish = _progress_printer("check")
@@ -161,10 +162,10 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
     """Show which parameter drives which coefficient, in which direction, and the bounds."""
     from pathlib import Path
 
-    from .case import load_case
+    from .model.case import load_case
     from .errors import InputError
-    from .graph import build_graph, write_graphml
-    from .textout import render_trace, trace_data
+    from .model.graph import build_graph, write_graphml
+    from .render.text import render_trace, trace_data
 
     loaded = load_case(case)
     if graphml is not None and Path(graphml).exists():
@@ -197,10 +198,10 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
 
     Exit code 1 when a requirement of the case is not met.
     """
-    from .case import load_case
-    from .exact import to_fraction
-    from .margin import margin
-    from .textout import render_margin
+    from .model.case import load_case
+    from .exact.numbers import to_fraction
+    from .analysis.margin import margin
+    from .render.text import render_margin
 
     loaded = load_case(case)
     cap_value = to_fraction(cap, "--cap")
@@ -229,9 +230,9 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
 @_guarded
 def rank_command(case: str, max_seconds: float, as_json: bool) -> None:
     """Rank the parameters, most critical first, with their margins."""
-    from .case import load_case
-    from .rank import rank
-    from .textout import render_rank
+    from .model.case import load_case
+    from .analysis.rank import rank
+    from .render.text import render_rank
 
     loaded = load_case(case)
     click.echo("rank: computing (budget %.0f s)..." % max_seconds, err=True)
@@ -251,9 +252,9 @@ def rank_command(case: str, max_seconds: float, as_json: bool) -> None:
 @_guarded
 def yield_command(case: str, draws: int, seed: int, as_json: bool) -> None:
     """Monte Carlo yield: the fraction of random builds that are stable."""
-    from .case import load_case
-    from .montecarlo import estimate_yield
-    from .textout import render_yield
+    from .model.case import load_case
+    from .analysis.montecarlo import estimate_yield
+    from .render.text import render_yield
 
     loaded = load_case(case)
 
@@ -276,7 +277,7 @@ def _stage_printer(line: str) -> None:
 
 def _summary_lines(analysis, files) -> list[str]:
     """The short summary ``robust report`` and ``robust demo`` print."""
-    from .report.content import outcome
+    from .render.content import outcome
 
     check = analysis.check
     m = analysis.margin
@@ -318,8 +319,9 @@ def report_command(case: str, directory: str, max_seconds: float, draws: int, se
 
     Exit code 0 when the report was written, whatever it concludes; 2: bad input.
     """
-    from .case import load_case
-    from .report import analyse, check_directory, result_data, write_report
+    from .model.case import load_case
+    from .analysis.signoff import analyse
+    from .render import check_directory, result_data, write_report
 
     check_directory(directory)
     loaded = load_case(case)
@@ -345,8 +347,9 @@ def demo_command(directory: str) -> None:
     from importlib import resources
     from pathlib import Path
 
-    from .case import load_case
-    from .report import analyse, check_directory, write_report
+    from .model.case import load_case
+    from .analysis.signoff import analyse
+    from .render import check_directory, write_report
 
     source = resources.files("robust") / "data" / "demo.toml"
     text = source.read_bytes()

@@ -1,4 +1,4 @@
-"""Tests for robust.case: case files, parameters and their tolerances.
+"""Tests for robust.model.case: case files, parameters and their tolerances.
 
 Truth comes from outside the project: every example case's characteristic polynomial is
 rebuilt here with sympy from the derivation in the file's header comment (Meurer et al.,
@@ -18,9 +18,9 @@ from pathlib import Path
 import pytest
 import sympy as sp
 
-from robust.case import load_case, parse_case
+from robust.model.case import load_case, parse_case
 from robust.errors import CaseError, InputError, RobustError
-from robust.verdict import check
+from robust.analysis.verdict import check
 
 F = Fraction
 CASES_DIR = Path(__file__).resolve().parent.parent / "cases"
@@ -126,7 +126,7 @@ def test_every_case_file_has_an_expectation():
 
 @pytest.mark.parametrize("path", CASES, ids=lambda p: p.stem)
 def test_case_loads_and_check_gives_the_stated_verdict(path):
-    """Each example loads and robust.verdict.check returns the verdict its header states."""
+    """Each example loads and robust.analysis.verdict.check returns the verdict its header states."""
     case = load_case(path)
     result = check(case, max_seconds=20)
     assert result.verdict == EXPECTED[path.stem][0]

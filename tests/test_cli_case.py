@@ -23,7 +23,7 @@ import pytest
 import sympy as sp
 from click.testing import CliRunner
 
-from robust.case import load_case
+from robust.model.case import load_case
 from robust.cli import main
 
 F = Fraction

@@ -18,7 +18,7 @@ from click.testing import CliRunner
 from reference import reference_counts
 
 from robust.cli import EXAMPLE_POLYNOMIAL, main
-from robust.routh import routh_table
+from robust.model.forms import routh_table
 
 
 @pytest.fixture

@@ -1,4 +1,4 @@
-"""Tests for robust.edges: exact segment decisions and the edges of a box.
+"""Tests for robust.analysis.edges: exact segment decisions and the edges of a box.
 
 Every verdict of ``check_segment`` is checked against methods outside the project: a dense
 rational grid decided by the exact Routh test and by numpy's root finder, Bialas' eigenvalue
@@ -17,8 +17,9 @@ import sympy as sp
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from robust.edges import box_edges, check_segment, hurwitz_matrix
-from robust.routh import is_hurwitz
+from robust.analysis.edges import box_edges, check_segment
+from robust.exact.hurwitz import hurwitz_matrix
+from robust.exact.routh import is_hurwitz
 
 try:  # tests/ on sys.path (pytest's default rootdir-relative import)
     from reference import reference_counts

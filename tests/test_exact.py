@@ -1,4 +1,4 @@
-"""Tests for robust.exact: exact numbers from the text people write.
+"""Tests for robust.exact.numbers: exact numbers from the text people write.
 
 Truth comes from outside the project: sympy's exact ``Rational`` reading of decimal text
 (Meurer et al., "SymPy: symbolic computing in Python", PeerJ Comput. Sci., 2017), the SI
@@ -18,7 +18,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from robust.errors import InputError, RobustError
-from robust.exact import format_fraction, parse_number, to_fraction
+from robust.exact.numbers import format_fraction, parse_number, to_fraction
 
 
 def as_fraction(value: sp.Rational) -> Fraction:

@@ -1,4 +1,4 @@
-"""Tests for robust.expr: the safe formula parser and polynomial coefficients.
+"""Tests for robust.model.expr: the safe formula parser and polynomial coefficients.
 
 Truth comes from outside the project: expected expressions are built programmatically with
 sympy objects and Python operators (sp.Symbol, +, *, **; Meurer et al., "SymPy: symbolic
@@ -19,7 +19,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from robust.errors import FormulaError, InputError
-from robust.expr import MAX_EXPONENT, parse_formula, polynomial_coefficients
+from robust.model.expr import MAX_EXPONENT, parse_formula, polynomial_coefficients
 
 S = sp.Symbol("s")
 R1, C1, K = sp.symbols("R1 C1 K")

@@ -1,4 +1,4 @@
-"""Tests for robust.family: the uncertain polynomial over a parameter box.
+"""Tests for robust.model.family: the uncertain polynomial over a parameter box.
 
 Truth comes from outside the project: coefficients are compared with sympy expansions of the
 same formulas (Meurer et al., "SymPy: symbolic computing in Python", PeerJ Comput. Sci. 2017);
@@ -19,10 +19,10 @@ import sympy as sp
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from robust.case import load_case
+from robust.model.case import load_case
 from robust.errors import InputError
-from robust.family import Box, UncertainPolynomial, box_from, build_family, classify
-from robust.polynomials import MultiPoly
+from robust.model.family import Box, UncertainPolynomial, box_from, build_family, classify
+from robust.exact.polynomials import MultiPoly
 
 F = Fraction
 CASES = Path(__file__).resolve().parent.parent / "cases"

@@ -1,4 +1,4 @@
-"""Tests for robust.interval: interval polynomials and Kharitonov's theorem.
+"""Tests for robust.exact.interval: interval polynomials and Kharitonov's theorem.
 
 Truth comes from outside the project:
 
@@ -27,14 +27,14 @@ import sympy as sp
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from robust.interval import (
+from robust.exact.interval import (
     KHARITONOV_PATTERNS,
     REDUCED_SETS,
     IntervalPolynomial,
     interval_from_bounds,
     kharitonov_test,
 )
-from robust.routh import is_hurwitz
+from robust.exact.routh import is_hurwitz
 
 F = Fraction
 LABELS = ("K1", "K2", "K3", "K4")

@@ -1,4 +1,4 @@
-"""Tests for robust.margin: the robust margin rho* and the decay-rate margin sigma*.
+"""Tests for robust.analysis.margin: the robust margin rho* and the decay-rate margin sigma*.
 
 Truth comes from outside the project:
 
@@ -26,9 +26,11 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 from strategies import case_toml
 
-from robust.case import parse_case
-from robust.margin import check_requirements, decay_rate, margin, shifted_family
-from robust.verdict import decide
+from robust.model.case import parse_case
+from robust.analysis.decay import decay_rate, shifted_family
+from robust.analysis.margin import margin
+from robust.analysis.requirements import check_requirements
+from robust.analysis.verdict import decide
 
 # -- building cases and checking answers independently ------------------------------------
 

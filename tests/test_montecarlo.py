@@ -1,4 +1,4 @@
-"""Tests for robust.montecarlo: seeded draws, the float Routh screen and the yield interval.
+"""Tests for robust.analysis.montecarlo: seeded draws, the float Routh screen and the yield interval.
 
 Truth comes from outside the project: families whose stable region is a known fraction of
 the box by the degree-3 Hurwitz condition (a_i > 0 and a2*a1 > a3*a0; Gantmacher, "The
@@ -8,7 +8,7 @@ binomial", Biometrika 26, 1934) recomputed here from beta quantiles and by
 scipy.stats.binomtest (Virtanen et al., "SciPy 1.0", Nature Methods 17, 2020); the normal
 tail mass beyond 3 sigma from scipy.stats.norm; root signs of screened rows from mpmath at
 60 digits (Johansson et al., mpmath, 2013-). The screen is also compared with the exact
-Routh test robust.routh.is_hurwitz on every row.
+Routh test robust.exact.routh.is_hurwitz on every row.
 """
 
 from __future__ import annotations
@@ -23,9 +23,9 @@ from hypothesis import strategies as st
 from scipy import stats
 from strategies import case_toml
 
-from robust.case import parse_case
-from robust.montecarlo import draw_parameters, estimate_yield, float_routh_screen
-from robust.routh import is_hurwitz
+from robust.model.case import parse_case
+from robust.analysis.montecarlo import draw_parameters, estimate_yield, float_routh_screen
+from robust.exact.routh import is_hurwitz
 
 
 def _case_text(parameters: dict[str, dict[str, str]], coefficients: list[str]) -> str:

@@ -1,4 +1,4 @@
-"""Tests for robust.polynomials: exact sparse polynomials in the parameters and their bounds.
+"""Tests for robust.exact.polynomials: exact sparse polynomials in the parameters and their bounds.
 
 Truth comes from outside the project: values, derivatives and substitutions are compared with
 sympy (Meurer et al., "SymPy: symbolic computing in Python", PeerJ Comput. Sci. 2017); ranges
@@ -20,7 +20,7 @@ import sympy as sp
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from robust.polynomials import Bound, MultiPoly, as_intervals, interval_power
+from robust.exact.polynomials import Bound, MultiPoly, as_intervals, interval_power
 
 F = Fraction
 mpq = gmpy2.mpq

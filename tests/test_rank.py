@@ -1,4 +1,4 @@
-"""Tests for robust.rank: per-parameter margins, the ranking and the tightened tolerances.
+"""Tests for robust.analysis.rank: per-parameter margins, the ranking and the tightened tolerances.
 
 Truth comes from outside the project: for one parameter entering a degree-3 family linearly,
 the polynomial stays Hurwitz while every coefficient is positive and a2*a1 > a3*a0 (degree-3
@@ -19,10 +19,10 @@ from hypothesis import HealthCheck, assume, event, given, settings
 from hypothesis import strategies as st
 from strategies import case_toml
 
-from robust.case import parse_case
-from robust.rank import rank
-from robust.textout import render_rank
-from robust.verdict import decide
+from robust.model.case import parse_case
+from robust.analysis.rank import rank
+from robust.render.text import render_rank
+from robust.analysis.verdict import decide
 
 
 def _case_text(parameters: dict[str, dict[str, str]], coefficients: list[str] | None = None,

@@ -1,4 +1,4 @@
-"""Tests for robust.report and the `report` and `demo` commands: the sign-off report.
+"""Tests for robust.render and the `report` and `demo` commands: the sign-off report.
 
 The value-set check rests on Kharitonov's theorem in its frequency-domain form: the values
 p(j omega) of an interval polynomial fill the axis-parallel rectangle whose corners are the
@@ -19,11 +19,12 @@ import numpy as np
 import pytest
 from click.testing import CliRunner
 
-from robust.case import load_case
+from robust.model.case import load_case
 from robust.cli import main
 from robust.errors import InputError
-from robust.report import analyse, choose_omegas, result_data, sample_draws, value_set_data, write_report
-from robust.report.figures import FIGURE_NAMES
+from robust.analysis.signoff import analyse
+from robust.render import choose_omegas, result_data, sample_draws, value_set_data, write_report
+from robust.render.figures import FIGURE_NAMES
 
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
 IDS = [path.stem for path in CASES]

@@ -1,4 +1,4 @@
-"""Tests for robust.routh: the exact Routh array, its special rows and its root counts.
+"""Tests for robust.exact.routh: the exact Routh array, its special rows and its root counts.
 
 Truth comes from outside the project:
 
@@ -38,7 +38,7 @@ from strategies import (
 )
 
 from robust import InputError, RootCounts, RouthTable, is_hurwitz, routh_table
-from robust.routh import EPSILON, RouthRow, SpecialRow, format_entry
+from robust.exact.routh import EPSILON, RouthRow, SpecialRow, format_entry
 
 S = sp.Symbol("s")
 X = sp.Symbol("x")

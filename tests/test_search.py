@@ -1,4 +1,4 @@
-"""Tests for robust.search: the floating-point screening score and the witness search.
+"""Tests for robust.analysis.search: the floating-point screening score and the witness search.
 
 The score is checked row by row against numpy.roots and mpmath.polyroots; every point the
 search returns is checked to lie in the box (exact Fractions) and to be unstable by an
@@ -16,9 +16,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from hypothesis.extra import numpy as hnp
 
-from robust.case import parse_case
-from robust.routh import is_hurwitz
-from robust.search import batch_worst_angle, search_witness, worst_root_angle
+from robust.model.case import parse_case
+from robust.exact.routh import is_hurwitz
+from robust.analysis.search import batch_worst_angle, search_witness, worst_root_angle
 
 
 def _angle_by_numpy(row) -> float:

@@ -1,4 +1,4 @@
-"""Tests for robust.verdict: prove, refute with a verified witness, or say undecided.
+"""Tests for robust.analysis.verdict: prove, refute with a verified witness, or say undecided.
 
 Truth comes from outside the project: families built so that the degree-3 Hurwitz condition
 (all a_i > 0 and a2*a1 > a3*a0; Gantmacher, "The Theory of Matrices", vol. 2, 1959, ch. XV,
@@ -24,10 +24,10 @@ from hypothesis import HealthCheck, event, given, settings
 from hypothesis import strategies as st
 from strategies import case_toml
 
-from robust.case import load_case, parse_case
-from robust.family import Box
-from robust.routh import is_hurwitz
-from robust.verdict import check, decide
+from robust.model.case import load_case, parse_case
+from robust.model.family import Box
+from robust.exact.routh import is_hurwitz
+from robust.analysis.verdict import check, decide
 
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
 QUICK = {"max_seconds": 5.0, "max_boxes": 2000}
@@ -67,7 +67,7 @@ def _exact(value: object) -> Fraction:
 
 
 def _box_from_text(text: str) -> dict[str, tuple[Fraction, Fraction]]:
-    """name -> (low, high) read straight from the case text (not through robust.case)."""
+    """name -> (low, high) read straight from the case text (not through robust.model.case)."""
     data = tomllib.loads(text)
     out = {}
     for name, spec in data["parameters"].items():
@@ -498,7 +498,7 @@ def test_verdict_never_contradicts_dense_sampling_and_witnesses_verify(made, see
     points = _grid(box, 3) + _random_points(box, 120, rng)
     unstable_found = False
     for point in points:
-        coeffs = _polynomial_from_text(text, point)  # sympy rebuild, not robust.family
+        coeffs = _polynomial_from_text(text, point)  # sympy rebuild, not robust.model.family
         if len(coeffs) - 1 < case.family.degree or not is_hurwitz(coeffs):
             unstable_found = True
             break

@@ -1,4 +1,4 @@
-"""The sign-off report: every analysis of a case, rendered for people and for programs.
+"""Rendering: results as terminal text and as the sign-off report (no mathematics here).
 
 Architecture (imports flow downwards only):
 
@@ -9,18 +9,16 @@ Architecture (imports flow downwards only):
     figures       the pictures (matplotlib, Agg canvas, imported lazily)
     figdata       the numbers behind the pictures (value set, roots), numpy only
     data          result.json: the other commands' JSON in one object
-    analysis      one run of check, requirements, margin, rank and yield under one budget
+    text          terminal text of every command
     fmt, blocks   number formatting; the block types
 
 The package sits above every analysis module and below the command line; nothing in
-``robust`` outside ``cli`` imports it.
+``robust`` outside ``cli`` imports it. The analyses a report shows are run by
+:func:`robust.analysis.signoff.analyse`.
 """
 
 from __future__ import annotations
 
-from .analysis import Analysis as Analysis
-from .analysis import Settings as Settings
-from .analysis import analyse as analyse
 from .data import result_data as result_data
 from .figdata import choose_omegas as choose_omegas
 from .figdata import sample_draws as sample_draws
@@ -30,10 +28,7 @@ from .writer import check_directory as check_directory
 from .writer import write_report as write_report
 
 __all__ = [
-    "Analysis",
     "ReportFiles",
-    "Settings",
-    "analyse",
     "check_directory",
     "choose_omegas",
     "result_data",

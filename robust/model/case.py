@@ -16,8 +16,8 @@ from pathlib import Path
 
 import sympy as sp
 
-from .errors import CaseError, FormulaError, InputError
-from .exact import parse_number, to_fraction
+from ..errors import CaseError, FormulaError, InputError
+from ..exact.numbers import parse_number, to_fraction
 from .expr import MAX_DEGREE, parse_formula
 from .family import Box, UncertainPolynomial, build_family
 

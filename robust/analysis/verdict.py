@@ -10,7 +10,7 @@ Steps, cheapest first; each is sound on its own:
    bound that breaks the sign condition) that one parameter point produces is a witness;
 4. a witness search: box corners, a seeded sample screened in floating point, and a local
    optimisation (scipy) of the worst root's angle, every candidate re-decided exactly;
-5. affine families: the edge theorem, each box edge decided exactly (:mod:`robust.edges`);
+5. affine families: the edge theorem, each box edge decided exactly (:mod:`robust.analysis.edges`);
 6. otherwise box subdivision: each sub-box proven by its own overbound + Kharitonov, or
    split along the parameter that most widens the coefficient intervals; the centre of
    each resisting box is tested exactly, and local searches run on stubborn boxes.
@@ -31,11 +31,11 @@ from fractions import Fraction
 import numpy as np
 
 from .edges import box_edges, check_segment
-from .exact import format_fraction
-from .family import Box, UncertainPolynomial
-from .interval import IntervalPolynomial, KharitonovResult, KharitonovVertex, kharitonov_test
-from .polynomials import Bound, as_intervals
-from .routh import RootCounts, is_hurwitz, routh_table
+from ..exact.numbers import format_fraction
+from ..model.family import Box, UncertainPolynomial
+from ..exact.interval import IntervalPolynomial, KharitonovResult, KharitonovVertex, kharitonov_test
+from ..exact.polynomials import Bound, as_intervals
+from ..exact.routh import RootCounts, is_hurwitz, routh_table
 from .search import batch_worst_angle, search_witness
 
 __all__ = [

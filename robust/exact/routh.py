@@ -30,12 +30,10 @@ from dataclasses import dataclass
 from fractions import Fraction
 from math import lcm
 
-import gmpy2
 import sympy as sp
 
-from .errors import InputError
-from .exact import format_fraction, to_fraction
-from .expr import polynomial_coefficients
+from ..errors import InputError
+from .numbers import divexact, format_fraction, mpz, to_fraction
 
 __all__ = [
     "RootCounts",
@@ -234,25 +232,21 @@ def _format_polynomial(coefficients: Sequence[Entry], variable: str = "s") -> st
 # -- input --------------------------------------------------------------------------------
 
 
-def as_coefficients(poly_or_coeffs: object, variable: str = "s") -> tuple[Fraction, ...]:
+def as_coefficients(coefficients: object) -> tuple[Fraction, ...]:
     """Exact coefficients, highest power first, with leading zeros removed.
 
-    Accepts a polynomial written in ``variable`` (text) or a sequence of ints, Fractions,
-    decimal strings or floats (floats through their shortest repr).
+    Accepts a sequence of ints, Fractions, decimal strings or floats (floats through their
+    shortest repr). Text in ``s`` is read one layer up, by :func:`robust.model.forms.routh_table`.
 
     Raises
     ------
     InputError
         When nothing usable is given or every coefficient is zero.
     """
-    if isinstance(poly_or_coeffs, str):
-        coeffs = polynomial_coefficients(poly_or_coeffs, variable)
-    elif isinstance(poly_or_coeffs, Sequence):
-        coeffs = [to_fraction(c, f"coefficient {i}") for i, c in enumerate(poly_or_coeffs)]
-    else:
-        raise InputError(
-            "polynomial", "not a polynomial", "text in s or a list of coefficients", poly_or_coeffs
-        )
+    if isinstance(coefficients, str) or not isinstance(coefficients, Sequence):
+        raise InputError("polynomial", "not a list of coefficients",
+                         "coefficients highest power first", coefficients)
+    coeffs = [to_fraction(c, f"coefficient {i}") for i, c in enumerate(coefficients)]
     start = next((i for i, c in enumerate(coeffs) if c != 0), None)
     if start is None:
         raise InputError("polynomial", "the zero polynomial has no roots to count",
@@ -298,7 +292,6 @@ def _fraction_free_rows(ints: Sequence[int], stop_at_non_positive: bool = False)
     """
     n = len(ints) - 1
     width = n // 2 + 1
-    mpz = gmpy2.mpz
     top = [mpz(x) for x in ints[0::2]]
     low = [mpz(x) for x in ints[1::2]]
     rows = [top + [mpz(0)] * (width - len(top)), low + [mpz(0)] * (width - len(low))]
@@ -315,7 +308,7 @@ def _fraction_free_rows(ints: Sequence[int], stop_at_non_positive: bool = False)
             new = [b0 * a[j + 1] - a0 * b[j + 1] for j in range(length)]
         else:
             d = rows[m - 3][0]
-            new = [gmpy2.divexact(b0 * a[j + 1] - a0 * b[j + 1], d) for j in range(length)]
+            new = [divexact(b0 * a[j + 1] - a0 * b[j + 1], d) for j in range(length)]
         if new[0] == 0 or (stop_at_non_positive and new[0] < 0):
             return None
         rows.append(new + [zero] * (width - length))
@@ -407,14 +400,15 @@ def _general_rows(coeffs: Sequence[Fraction]) -> tuple[list[list[Entry]], list[S
     return rows, special, (first_aux if first_aux is not None else -1)
 
 
-def routh_table(poly_or_coeffs: object, shift: object = 0, variable: str = "s") -> RouthTable:
+def routh_table(coefficients: object, shift: object = 0) -> RouthTable:
     """Build the exact Routh array of a polynomial and count its roots.
 
     Parameters
     ----------
-    poly_or_coeffs
-        Text in ``variable`` (``"s^3 + 2*s^2 + 3*s + 1"``) or coefficients highest power first
-        (ints, Fractions, decimal strings such as ``"0.1"`` taken exactly).
+    coefficients
+        Coefficients highest power first (ints, Fractions, decimal strings such as ``"0.1"``
+        taken exactly). Text such as ``"s^3 + 2*s^2 + 1"`` is read by the public
+        :func:`robust.routh_table` (:func:`robust.model.forms.routh_table`).
     shift
         ``sigma``: count relative to the line Re(s) = -sigma (the table is that of
         p(s - sigma)); e.g. ``shift=1`` asks whether every root has Re(s) < -1.
@@ -430,14 +424,14 @@ def routh_table(poly_or_coeffs: object, shift: object = 0, variable: str = "s") 
 
     Examples
     --------
-    >>> t = routh_table("(s^2 + 1)^2*(s + 1)")
+    >>> t = routh_table([1, 1, 2, 2, 1, 1])  # (s^2 + 1)^2 (s + 1)
     >>> t.roots
     RootCounts(open_right=0, imaginary_axis=4, open_left=1)
     >>> routh_table([1, "0.5", "0.06"]).is_hurwitz
     True
     """
     sigma = to_fraction(shift, "shift")
-    coeffs = shift_coefficients(as_coefficients(poly_or_coeffs, variable), sigma)
+    coeffs = shift_coefficients(as_coefficients(coefficients), sigma)
     n = len(coeffs) - 1
     ints = _integer_coefficients(coeffs)
     fast = _fraction_free_rows(ints)

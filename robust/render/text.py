@@ -4,8 +4,8 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from .exact import format_fraction
-from .routh import RouthTable, format_entry
+from ..exact.numbers import format_fraction
+from ..exact.routh import RouthTable, format_entry
 
 __all__ = ["render_table", "roots_sentence"]
 
@@ -40,7 +40,7 @@ def render_table(table: RouthTable) -> str:
     for special in table.special_rows:
         marks.setdefault(special.power, []).append(special)
     lines = []
-    from .routh import _format_polynomial  # display helper shared with the table notes
+    from ..exact.routh import _format_polynomial  # display helper shared with the table notes
 
     lines.append("p(s) = " + _format_polynomial(table.coefficients)
                  + (f"   [p shifted: s -> s - {format_fraction(table.shift)}]" if table.shift else ""))
@@ -152,7 +152,7 @@ def trace_data(case, graph) -> dict:
     vertices = {}
     for node in graph.nodes:
         if node[0] == "vertex":
-            from .graph import drivers
+            from ..model.graph import drivers
 
             vertices[node[1]] = {name: dirs for name, dirs in drivers(graph, node[1]).items()}
     return {"family_class": fam.kind, "degree": fam.degree, "parameters": list(fam.names),

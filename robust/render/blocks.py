@@ -1,6 +1,6 @@
 """The report as a small tree of neutral blocks that the HTML and Markdown writers render.
 
-The content is decided once (:mod:`robust.report.content`); each writer only decides how
+The content is decided once (:mod:`robust.render.content`); each writer only decides how
 a block looks. Text is plain: the writers escape it.
 """
 

@@ -10,8 +10,8 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Any
 
-from ..graph import build_graph
-from .analysis import Analysis
+from ..model.graph import build_graph
+from ..analysis.signoff import Analysis
 from .blocks import (
     Badge,
     Cell,

@@ -15,8 +15,8 @@ from fractions import Fraction
 import numpy as np
 import sympy as sp
 
-from .errors import InputError
-from .polynomials import Bound, MultiPoly, as_intervals
+from ..errors import InputError
+from ..exact.polynomials import Bound, MultiPoly, as_intervals
 
 __all__ = ["Box", "UncertainPolynomial", "build_family", "classify"]
 
@@ -91,7 +91,7 @@ class Box:
 
     def as_dict(self) -> dict[str, list[str]]:
         """JSON form: name -> [low, high] as exact strings."""
-        from .exact import format_fraction
+        from ..exact.numbers import format_fraction
 
         return {n: [format_fraction(a), format_fraction(b)]
                 for n, (a, b) in zip(self.names, self.intervals, strict=True)}

@@ -27,9 +27,9 @@ from fractions import Fraction
 
 import sympy as sp
 
-from .routh import is_hurwitz
+from ..exact.routh import is_hurwitz
 
-__all__ = ["SegmentResult", "box_edges", "check_segment", "hurwitz_matrix"]
+__all__ = ["SegmentResult", "box_edges", "check_segment"]
 
 _L = sp.Symbol("l")
 
@@ -41,19 +41,6 @@ class SegmentResult:
     stable: bool
     witness_l: Fraction | None = None
     crossing: str = ""  # "origin", "infinity", "imaginary pair", or "" when stable
-
-
-def hurwitz_matrix(coefficients: Sequence[sp.Expr], order: int) -> sp.Matrix:
-    """The leading ``order`` x ``order`` block of the Hurwitz matrix of a_n .. a_0.
-
-    Entry (i, j) is a_(n - (2j - i + 1)) in descending-index form (Hurwitz 1895).
-    """
-    n = len(coefficients) - 1
-
-    def a(k: int) -> sp.Expr:  # a_k with a_n the leading coefficient
-        return coefficients[n - k] if 0 <= k <= n else sp.Integer(0)
-
-    return sp.Matrix(order, order, lambda i, j: a(n - (2 * (j + 1) - (i + 1))))
 
 
 def check_segment(p0: Sequence[Fraction], p1: Sequence[Fraction]) -> SegmentResult:

@@ -7,12 +7,13 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from datetime import datetime
 
-from .. import __version__
-from ..case import Case
-from ..margin import MarginResult, RequirementCheck, check_requirements, margin
-from ..montecarlo import YieldResult, estimate_yield
-from ..rank import RankResult, rank
-from ..verdict import CheckResult, check
+from .._version import __version__
+from ..model.case import Case
+from .margin import MarginResult, margin
+from .requirements import RequirementCheck, check_requirements
+from .montecarlo import YieldResult, estimate_yield
+from .rank import RankResult, rank
+from .verdict import CheckResult, check
 
 __all__ = ["Analysis", "Settings", "analyse"]
 

@@ -2,7 +2,7 @@
 
 A coefficient of the characteristic polynomial is a :class:`MultiPoly`: a map from exponent
 tuples (one exponent per parameter, in the family's parameter order) to exact rationals.
-Arithmetic inside uses ``gmpy2.mpq`` (exact, and far faster than ``Fraction``); results
+Arithmetic inside uses GMP rationals (``mpq`` of :mod:`robust.exact.numbers`) (exact, and far faster than ``Fraction``); results
 leave as ``Fraction``.
 
 Bounds over a box use exact rational interval arithmetic (Moore, "Interval Analysis",
@@ -18,25 +18,17 @@ from dataclasses import dataclass
 from fractions import Fraction
 from itertools import product
 
-import gmpy2
 import numpy as np
+
+from .numbers import from_mpq, mpq, to_mpq
 
 __all__ = ["Bound", "MultiPoly", "interval_power"]
 
 _VARIABLES: dict[tuple, frozenset[int]] = {}  # terms -> variables used (terms are immutable)
 
-mpq = gmpy2.mpq
 Interval = tuple  # (low, high) of mpq
-
-
-def _q(value: Fraction | int) -> gmpy2.mpq:
-    if isinstance(value, Fraction):
-        return mpq(value.numerator, value.denominator)
-    return mpq(value)
-
-
-def _f(value) -> Fraction:
-    return Fraction(int(value.numerator), int(value.denominator))
+_q = to_mpq
+_f = from_mpq
 
 
 def interval_power(low, high, k: int) -> Interval:
@@ -68,7 +60,7 @@ class Bound:
 class MultiPoly:
     """An exact polynomial in ``nvars`` parameters.
 
-    ``terms`` maps exponent tuples to non-zero ``gmpy2.mpq`` coefficients, kept sorted for a
+    ``terms`` maps exponent tuples to non-zero ``mpq`` coefficients, kept sorted for a
     canonical form.
     """
 

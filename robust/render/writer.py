@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import InputError
-from .analysis import Analysis
+from ..analysis.signoff import Analysis
 from .content import build_document
 from .data import TOOL_NAME, result_data
 from .figures import FIGURE_NAMES, draw_figures

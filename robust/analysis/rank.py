@@ -4,7 +4,7 @@ For every parameter:
 
 * ``margin_alone``: the scale of this parameter's tolerance alone (the others at nominal)
   up to which the polynomial stays stable - exact, by the first crossing along the two
-  directions of its range (see :func:`robust.margin.path_margin`);
+  directions of its range (see :func:`robust.analysis.margin.path_margin`);
 * ``margin_given_others``: the scale of this parameter's tolerance with every other
   parameter over its full range - a certified bracket by bisection with the decision
   ladder. Below 1 it says how tight this part must be for the design to pass (others as
@@ -19,9 +19,11 @@ import time
 from dataclasses import dataclass
 from fractions import Fraction
 
-from .family import Box, UncertainPolynomial
-from .graph import build_graph
-from .margin import DEFAULT_CAP, Bracket, bisect_margin, path_margin
+from ..model.family import Box, UncertainPolynomial
+from ..model.graph import build_graph
+from ..exact.numbers import short_between
+from .bracket import Bracket, bisect_margin
+from .crossings import DEFAULT_CAP, path_margin
 from .verdict import Witness, decide
 
 __all__ = ["ParameterRank", "RankResult", "rank"]
@@ -78,10 +80,8 @@ def _alone(family: UncertainPolynomial, i: int, cap: Fraction) -> Bracket:
 
 
 def _beyond(family: UncertainPolynomial, i: int, value: Fraction, cap: Fraction) -> Fraction | None:
-    from .margin import _short_between
-
     for factor in (Fraction(1, 10**9), Fraction(1, 10**6), Fraction(1, 1000)):
-        rho = _short_between(value * (1 + factor / 2), value * (1 + factor)) or value * (1 + factor)
+        rho = short_between(value * (1 + factor / 2), value * (1 + factor)) or value * (1 + factor)
         if rho > cap:
             return None
         box = _only(family, i, rho, others_at_nominal=True)

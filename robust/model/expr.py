@@ -22,8 +22,8 @@ from fractions import Fraction
 
 import sympy as sp
 
-from .errors import FormulaError, InputError
-from .exact import parse_number
+from ..errors import FormulaError, InputError
+from ..exact.numbers import parse_number
 
 __all__ = [
     "MAX_DEGREE",

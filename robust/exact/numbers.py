@@ -1,6 +1,11 @@
-"""Exact numbers from the text people write.
+"""Exact numbers: the one place that chooses the big-number backend and reads number text.
 
-Every number that enters an analysis becomes a :class:`fractions.Fraction` taken from its
+Backend. GMP through gmpy2 gives the exact integers (``mpz``) and rationals (``mpq``) of the
+hot loops (Routh rows, polynomial bounds); nothing else in the package imports gmpy2, and
+every conversion between ``Fraction`` and ``mpq`` is here (:func:`to_mpq`, :func:`from_mpq`).
+Results leave the exact core as ``fractions.Fraction``.
+
+Text. Every number that enters an analysis becomes a :class:`fractions.Fraction` taken from its
 decimal text: ``"0.1"`` is ``1/10``, never the binary float nearest to it. TOML floats are
 read back through their shortest ``repr``, which is the decimal the user typed.
 """
@@ -11,9 +16,40 @@ import re
 from fractions import Fraction
 from numbers import Rational
 
-from .errors import InputError
+import gmpy2
 
-__all__ = ["ENGINEERING_SUFFIXES", "format_fraction", "parse_number", "to_fraction"]
+from ..errors import InputError
+
+__all__ = [
+    "ENGINEERING_SUFFIXES",
+    "divexact",
+    "format_fraction",
+    "from_mpq",
+    "mpq",
+    "mpz",
+    "parse_number",
+    "short_between",
+    "to_fraction",
+    "to_mpq",
+]
+
+#: GMP integers and rationals (exact; much faster than ``int``/``Fraction`` in hot loops).
+mpz = gmpy2.mpz
+mpq = gmpy2.mpq
+#: Exact division of GMP integers known to divide (Bareiss steps).
+divexact = gmpy2.divexact
+
+
+def to_mpq(value: Fraction | int) -> object:
+    """A Fraction or int as a GMP rational."""
+    if isinstance(value, Fraction):
+        return mpq(value.numerator, value.denominator)
+    return mpq(value)
+
+
+def from_mpq(value: object) -> Fraction:
+    """A GMP rational (or integer) as a Fraction."""
+    return Fraction(int(value.numerator), int(value.denominator))  # type: ignore[attr-defined]
 
 #: Multipliers of the engineering suffixes accepted on numbers written as strings.
 ENGINEERING_SUFFIXES: dict[str, Fraction] = {
@@ -102,3 +138,15 @@ def to_fraction(value: object, what: str = "number") -> Fraction:
 def format_fraction(value: Fraction) -> str:
     """Exact text of a rational: ``"3"``, ``"-7/20"``."""
     return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
+
+
+def short_between(a: Fraction, b: Fraction) -> Fraction | None:
+    """A rational with a small denominator in [a, b] (continued-fraction search)."""
+    if a > b:
+        return None
+    mid = (a + b) / 2
+    for limit in (10, 100, 1000, 10**4, 10**6, 10**9, 10**12):
+        x = mid.limit_denominator(limit)
+        if a <= x <= b:
+            return x
+    return None

@@ -3,7 +3,7 @@ commands' ``--json`` give, plus the certificate tables."""
 
 from __future__ import annotations
 
-from .analysis import Analysis
+from ..analysis.signoff import Analysis
 
 __all__ = ["TOOL_NAME", "certificate_data", "check_data", "result_data"]
 

@@ -15,7 +15,7 @@ from typing import Any
 
 import numpy as np
 
-from .analysis import Analysis
+from ..analysis.signoff import Analysis
 from .figdata import choose_omegas, nominal_roots, polynomial_roots, sample_draws, value_set_data
 
 __all__ = ["FIGURE_NAMES", "Picture", "draw_figures"]
@@ -276,7 +276,7 @@ def dependency_picture(case) -> Picture:
     from matplotlib.lines import Line2D
     from matplotlib.patches import FancyArrowPatch
 
-    from ..graph import build_graph
+    from ..model.graph import build_graph
 
     family = case.family
     graph = build_graph(family)

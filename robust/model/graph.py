@@ -19,7 +19,7 @@ from fractions import Fraction
 import networkx as nx
 
 from .family import Box, UncertainPolynomial
-from .interval import KHARITONOV_PATTERNS, IntervalPolynomial
+from ..exact.interval import KHARITONOV_PATTERNS, IntervalPolynomial
 
 __all__ = ["Realisation", "build_graph", "drivers", "realise_vertex", "write_graphml"]
 
@@ -64,7 +64,7 @@ def build_graph(family: UncertainPolynomial, box: Box | None = None,
                 graph.add_edge(("parameter", name), ("coefficient", power),
                                direction=_SIGN_TEXT[directions[k][i]])
     if interval is None:
-        from .interval import interval_from_bounds
+        from ..exact.interval import interval_from_bounds
 
         interval = interval_from_bounds([b.low for b in bounds], [b.high for b in bounds])
     if interval.degree_invariant:

@@ -15,8 +15,8 @@ from fractions import Fraction
 import numpy as np
 from scipy.optimize import minimize
 
-from .family import Box, UncertainPolynomial
-from .routh import is_hurwitz
+from ..model.family import Box, UncertainPolynomial
+from ..exact.routh import is_hurwitz
 
 __all__ = ["batch_worst_angle", "search_witness", "worst_root_angle"]
 

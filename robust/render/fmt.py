@@ -6,8 +6,8 @@ import math
 from decimal import ROUND_CEILING, ROUND_FLOOR, Decimal, localcontext
 from fractions import Fraction
 
-from ..exact import format_fraction
-from ..routh import Entry, format_entry
+from ..exact.numbers import format_fraction
+from ..exact.routh import Entry, format_entry
 from .blocks import Cell
 
 __all__ = ["bound_text", "entry_cell", "exact_cell", "short"]

@@ -20,7 +20,7 @@ from fractions import Fraction
 import numpy as np
 from scipy import stats
 
-from .routh import is_hurwitz
+from ..exact.routh import is_hurwitz
 
 __all__ = ["YieldResult", "draw_parameters", "estimate_yield", "float_routh_screen"]
 

@@ -1,0 +1,1 @@
+"""What we conclude: verdicts, margins, ranking, yield."""

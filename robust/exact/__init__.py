@@ -1,0 +1,1 @@
+"""The exact core: numbers, polynomials, the Routh array, Hurwitz determinants, interval polynomials."""

@@ -1,0 +1,1 @@
+"""What the user wrote: formulas, case files, the uncertain family, the dependency graph."""
