@@ -16,6 +16,7 @@ from typing import Any
 import click
 
 from ._version import __version__
+from .analysis.outcomes import Outcome
 from .errors import RobustError
 from .exact.routh import RouthTable
 from .model.forms import routh_table
@@ -110,10 +111,27 @@ def _budget_options(func: Callable[..., Any]) -> Callable[..., Any]:
     from .analysis.verdict import DEFAULT_MAX_BOXES, DEFAULT_MAX_SECONDS
 
     func = click.option("--max-boxes", type=click.IntRange(min=1), default=DEFAULT_MAX_BOXES,
-                        show_default=True, help="Budget: sub-boxes/edges to examine.")(func)
+                        show_default=True, help="Work budget: sub-boxes/edges to examine.")(func)
     func = click.option("--max-seconds", type=click.FloatRange(min=0.01), default=DEFAULT_MAX_SECONDS,
-                        show_default=True, help="Budget: seconds of computation.")(func)
+                        show_default=True,
+                        help="Safety stop in wall-clock seconds (reported when it fires).")(func)
     return func
+
+
+def _search_budget_options(default_boxes: int, default_tests: int) -> Callable[..., Any]:
+    """--max-boxes per decision, --max-tests decisions, --max-seconds safety stop."""
+
+    def add(func: Callable[..., Any]) -> Callable[..., Any]:
+        func = click.option("--max-tests", type=click.IntRange(min=1), default=default_tests,
+                            show_default=True, help="Work budget: decisions per search.")(func)
+        func = click.option("--max-boxes", type=click.IntRange(min=1), default=default_boxes,
+                            show_default=True, help="Work budget: sub-boxes per decision.")(func)
+        func = click.option("--max-seconds", type=click.FloatRange(min=0.1), default=600.0,
+                            show_default=True,
+                            help="Safety stop in wall-clock seconds (reported when it fires).")(func)
+        return func
+
+    return add
 
 
 _CASE = click.Path(dir_okay=True, path_type=str)
@@ -139,7 +157,7 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
     report, finish = _progress_printer("check")
     result = check(loaded, max_seconds=max_seconds, max_boxes=max_boxes, progress=report)
     finish()
-    requirements = check_requirements(loaded, max_seconds=max_seconds / 2, max_boxes=max_boxes) \
+    requirements = check_requirements(loaded, max_seconds=max_seconds) \
         if result.verdict == "stable" else ()
     if as_json:
         _emit_json({"case": case, "title": loaded.title, **result.as_dict(),
@@ -148,7 +166,7 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
         click.echo(render_check(loaded, result))
         if requirements:
             click.echo(render_requirements(requirements))
-    failed = any(r.passed is not True for r in requirements)
+    failed = any(r.outcome is not Outcome.PASS for r in requirements)
     sys.exit(0 if result.verdict == "stable" and not failed else 1)
 
 
@@ -187,13 +205,12 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
 @click.option("--cap", default="100", show_default=True, help="Largest tolerance scale tried.")
 @click.option("--rel-tol", type=click.FloatRange(min=1e-15, max=0.5), default=None,
               help="Relative bracket width asked for [default: 1e-9 interval families, 1e-6 others].")
-@click.option("--max-seconds", type=click.FloatRange(min=0.1), default=60.0, show_default=True,
-              help="Budget: seconds of computation.")
+@_search_budget_options(2000, 48)
 @click.option("--no-decay", is_flag=True, help="Skip the decay-rate margin.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 @_guarded
-def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: float, no_decay: bool,
-                   as_json: bool) -> None:
+def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: float, max_boxes: int,
+                   max_tests: int, no_decay: bool, as_json: bool) -> None:
     """Robust margin rho* (how far every tolerance can grow) and the decay-rate margin.
 
     Exit code 1 when a requirement of the case is not met.
@@ -209,34 +226,34 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
         from .errors import InputError
 
         raise InputError("--cap", "must be positive", "a number such as 100", cap)
-    click.echo("margin: computing (budget %.0f s)..." % max_seconds, err=True)
+    click.echo(f"margin: computing ({max_tests} decisions of at most {max_boxes} boxes)...", err=True)
     result = margin(loaded, cap=cap_value, rel_tol=rel_tol, max_seconds=max_seconds,
-                    with_decay=not no_decay)
+                    max_boxes=max_boxes, max_tests=max_tests, with_decay=not no_decay)
     if as_json:
         _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
     else:
         click.echo(render_margin(loaded, result))
     # a requirement that is not proven met (failed or undecided) fails the command, as in check
-    failed = (result.requirement is not None and result.passed is not True) or (
-        result.decay is not None and result.decay.requirement is not None and result.decay.passed is not True)
+    failed = (result.outcome not in (None, Outcome.PASS)) or (
+        result.decay is not None and result.decay.outcome not in (None, Outcome.PASS))
     sys.exit(1 if failed else 0)
 
 
 @main.command("rank")
 @click.argument("case", type=_CASE)
-@click.option("--max-seconds", type=click.FloatRange(min=0.1), default=60.0, show_default=True,
-              help="Budget: seconds of computation.")
+@_search_budget_options(1000, 24)
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 @_guarded
-def rank_command(case: str, max_seconds: float, as_json: bool) -> None:
+def rank_command(case: str, max_seconds: float, max_boxes: int, max_tests: int, as_json: bool) -> None:
     """Rank the parameters, most critical first, with their margins."""
     from .model.case import load_case
     from .analysis.rank import rank
     from .render.text import render_rank
 
     loaded = load_case(case)
-    click.echo("rank: computing (budget %.0f s)..." % max_seconds, err=True)
-    result = rank(loaded, max_seconds=max_seconds)
+    click.echo(f"rank: computing ({max_tests} decisions of at most {max_boxes} boxes per part)...",
+               err=True)
+    result = rank(loaded, max_seconds=max_seconds, max_boxes=max_boxes, max_tests=max_tests)
     if as_json:
         _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
     else:
@@ -282,22 +299,27 @@ def _summary_lines(analysis, files) -> list[str]:
     check = analysis.check
     m = analysis.margin
     lines = [f"Case: {analysis.case.title}",
-             f"Verdict: {check.verdict.upper()}  ({check.method_text})"]
+             f"Verdict: {check.verdict.value.upper()}  ({check.method_text})"]
 
     def bracket(b) -> str:
         upper = "no failure found up to the cap" if b.upper is None else f"{float(b.upper):.6g}"
         return f"[{float(b.lower):.6g}, {upper}]"
 
-    lines.append(f"Robust margin rho*: {bracket(m.margin)}")
+    lines.append(f"Robust margin rho*: {bracket(m.margin)}; {m.limit.sentence()}")
     if m.decay is not None:
         lines.append(f"Decay rate sigma*: {bracket(m.decay.bracket)}")
-    if analysis.rank.parameters:
-        top = analysis.rank.parameters[0]
+    crossing = [p for p in analysis.rank.parameters if p.crosses]
+    if crossing:
+        top = crossing[0]
         lines.append(f"Most critical parameter: {top.name} "
-                     f"(margin alone {float(top.margin_alone.lower):.4g})")
+                     f"(alone, a root crosses at x{float(top.margin_alone.lower):.4g} of its tolerance)")
+    elif analysis.rank.parameters:
+        lines.append("No single part makes a root cross on its own before its limit or the cap")
     y = analysis.yield_result
     lines.append(f"Yield: {y.fraction:.2%} of {y.draws} random builds stable")
     lines.append(outcome(analysis)[1])
+    if analysis.safety_stop:
+        lines.append("Note: the wall-clock safety limit cut a search short; a re-run may differ")
     lines.append(f"Report: {files.html}")
     return lines
 
@@ -306,15 +328,17 @@ def _summary_lines(analysis, files) -> list[str]:
 @click.argument("case", type=_CASE)
 @click.option("-o", "--output", "directory", required=True, type=click.Path(path_type=str),
               help="Directory for report.html, report.md, figures/ and result.json.")
-@click.option("--max-seconds", type=click.FloatRange(min=1.0), default=60.0, show_default=True,
-              help="Budget: seconds for check, margin and rank together.")
+@click.option("--max-boxes", type=click.IntRange(min=1), default=20_000, show_default=True,
+              help="Work budget of the check: sub-boxes/edges to examine.")
+@click.option("--max-seconds", type=click.FloatRange(min=1.0), default=600.0, show_default=True,
+              help="Safety stop in wall-clock seconds for the whole report (reported when it fires).")
 @click.option("--draws", type=click.IntRange(min=1, max=10**7), default=20_000, show_default=True,
               help="Monte Carlo draws for the yield.")
 @click.option("--seed", type=int, default=0, show_default=True, help="Random seed.")
 @click.option("--json", "as_json", is_flag=True, help="Print the result as one JSON document.")
 @_guarded
-def report_command(case: str, directory: str, max_seconds: float, draws: int, seed: int,
-                   as_json: bool) -> None:
+def report_command(case: str, directory: str, max_boxes: int, max_seconds: float, draws: int,
+                   seed: int, as_json: bool) -> None:
     """Write the sign-off report of CASE into a directory (HTML, Markdown, JSON).
 
     Exit code 0 when the report was written, whatever it concludes; 2: bad input.
@@ -325,13 +349,16 @@ def report_command(case: str, directory: str, max_seconds: float, draws: int, se
 
     check_directory(directory)
     loaded = load_case(case)
-    analysis = analyse(loaded, max_seconds=max_seconds, yield_draws=draws, seed=seed,
-                       progress=_stage_printer)
+    analysis = analyse(loaded, max_seconds=max_seconds, max_boxes=max_boxes, yield_draws=draws,
+                       seed=seed, progress=_stage_printer)
     files = write_report(analysis, directory, progress=_stage_printer)
     if as_json:
         _emit_json(result_data(analysis))
     else:
+        from .render.content import rerun_command
+
         click.echo("\n".join(_summary_lines(analysis, files)))
+        click.echo("Re-run: " + rerun_command(analysis))
 
 
 @main.command("demo")
@@ -358,7 +385,9 @@ def demo_command(directory: str) -> None:
         loaded = load_case(path)
     # the report names the copy beside it, which holds the same bytes (same SHA-256)
     loaded = dataclasses.replace(loaded, path=str(Path(target) / "case.toml"))
-    analysis = analyse(loaded, max_seconds=20.0, yield_draws=20_000, seed=0, progress=_stage_printer)
+    analysis = analyse(loaded, yield_draws=20_000, seed=0, progress=_stage_printer)
     files = write_report(analysis, target, extra_files={"case.toml": text}, progress=_stage_printer)
     click.echo("\n".join(_summary_lines(analysis, files)))
-    click.echo(f"Re-run: robust report {Path(target) / 'case.toml'} -o DIR")
+    from .render.content import rerun_command
+
+    click.echo("Re-run: " + rerun_command(analysis, str(Path(target) / "case.toml")))

@@ -128,7 +128,7 @@ def test_every_case_file_has_an_expectation():
 def test_case_loads_and_check_gives_the_stated_verdict(path):
     """Each example loads and robust.analysis.verdict.check returns the verdict its header states."""
     case = load_case(path)
-    result = check(case, max_seconds=20)
+    result = check(case)
     assert result.verdict == EXPECTED[path.stem][0]
     if result.verdict == "unstable":
         assert result.witness is not None and case.family.box.contains(result.witness.point)

@@ -66,7 +66,7 @@ def _run(args: list[str]):
 def test_margin_json_has_bracket_exact_and_decay_rate(tmp_path):
     """--json: margin {lower, upper} numbers around 10/3, exact string or null, decay_rate around 0.7."""
     case = _write(tmp_path, "lags.toml", _product_case())
-    result = _run(["margin", case, "--json", "--max-seconds", "10"])
+    result = _run(["margin", case, "--json"])
     assert result.exit_code == 0
     data = json.loads(result.stdout)
     low, high = data["margin"]["lower"], data["margin"]["upper"]
@@ -124,7 +124,7 @@ coefficients = ["1", "3", "k"]
 
 def test_margin_requirements_that_hold_pass_with_exit_0(tmp_path):
     """margin 3 <= 10/3 and decay rate 0.6 <= 0.7: PASS lines and exit code 0."""
-    result = _run(["margin", _write(tmp_path, "ok.toml", _product_case("3", "0.6")), "--max-seconds", "10"])
+    result = _run(["margin", _write(tmp_path, "ok.toml", _product_case("3", "0.6"))])
     assert result.exit_code == 0
     assert "Requirement margin >= 3: PASS" in result.stdout
     assert "Requirement decay_rate >= 0.6: PASS" in result.stdout
@@ -138,8 +138,7 @@ def test_margin_requirements_that_hold_pass_with_exit_0(tmp_path):
 ])
 def test_margin_requirement_that_fails_exits_1(tmp_path, margin_req, decay_req, failing):
     """margin 3.5 > 10/3 or decay rate 0.75 > 0.7: a FAIL line and exit code 1."""
-    result = _run(["margin", _write(tmp_path, "bad.toml", _product_case(margin_req, decay_req)),
-                   "--max-seconds", "10"])
+    result = _run(["margin", _write(tmp_path, "bad.toml", _product_case(margin_req, decay_req))])
     assert result.exit_code == 1
     assert failing in result.stdout
 
@@ -150,13 +149,13 @@ def test_margin_requirement_that_fails_exits_1(tmp_path, margin_req, decay_req, 
 def test_check_exits_1_when_a_requirement_fails_on_a_stable_family(tmp_path):
     """The family is robustly stable, but decay rate 0.75 > 0.7 fails: exit code 1."""
     case = _write(tmp_path, "check.toml", _product_case("3", "0.75"))
-    result = _run(["check", case, "--json", "--max-seconds", "10"])
+    result = _run(["check", case, "--json"])
     assert result.exit_code == 1
     data = json.loads(result.stdout)
     assert data["verdict"] == "stable"
     assert data["requirements"]["margin"]["passed"] is True
     assert data["requirements"]["decay_rate"]["passed"] is False
-    text = _run(["check", case, "--max-seconds", "10"])
+    text = _run(["check", case])
     assert text.exit_code == 1
     assert "Requirement decay rate (every root has Re(s) < -0.75): FAIL" in text.stdout
     assert "Requirement margin (stable with every tolerance scaled by 3): PASS" in text.stdout
@@ -164,7 +163,7 @@ def test_check_exits_1_when_a_requirement_fails_on_a_stable_family(tmp_path):
 
 def test_check_exits_0_when_every_requirement_holds(tmp_path):
     """Stable family with margin 3 and decay rate 0.6 met: exit code 0."""
-    result = _run(["check", _write(tmp_path, "good.toml", _product_case("3", "0.6")), "--max-seconds", "10"])
+    result = _run(["check", _write(tmp_path, "good.toml", _product_case("3", "0.6"))])
     assert result.exit_code == 0
     assert "FAIL" not in result.stdout
 
@@ -174,7 +173,7 @@ def test_check_exits_0_when_every_requirement_holds(tmp_path):
 
 def test_rank_json_lists_parameters_most_critical_first(tmp_path):
     """a alone reaches 0 at scale 10/3, b alone at 4: a comes first, each with margin_alone."""
-    result = _run(["rank", _write(tmp_path, "lags.toml", _product_case()), "--json", "--max-seconds", "10"])
+    result = _run(["rank", _write(tmp_path, "lags.toml", _product_case()), "--json"])
     assert result.exit_code == 0
     data = json.loads(result.stdout)
     names = [p["name"] for p in data["parameters"]]
@@ -186,7 +185,7 @@ def test_rank_json_lists_parameters_most_critical_first(tmp_path):
 
 def test_rank_text_has_a_row_per_parameter(tmp_path):
     """The table names every parameter and what it acts through."""
-    result = _run(["rank", _write(tmp_path, "lags.toml", _product_case()), "--max-seconds", "10"])
+    result = _run(["rank", _write(tmp_path, "lags.toml", _product_case())])
     assert result.exit_code == 0
     lines = result.stdout.splitlines()
     assert any(line.startswith("a ") for line in lines) and any(line.startswith("b ") for line in lines)

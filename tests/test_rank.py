@@ -45,9 +45,11 @@ def _by_name(result):
 def _alone_closed_form(base: list[int], slopes: list[int], tol: Fraction) -> sp.Expr | None:
     """Least positive r where a_i(r) = base_i + slope_i * (+-tol * r) loses the degree-3
     Hurwitz condition (some a_i = 0, or a2 a1 = a3 a0: Gantmacher 1959, ch. XV, from memory),
-    over both directions of the range; None when it never does."""
+    over both directions of the range, or where K = 1 - tol * r reaches its physical limit 0
+    (r = 1 / tol: the default limit of a positive part, DESIGN.md section 4); None when
+    neither happens."""
     r = sp.Symbol("r", positive=True)
-    best = None
+    best = 1 / _q(tol)
     for direction in (1, -1):
         a3, a2, a1, a0 = (b + d * direction * _q(tol) * r for b, d in zip(base, slopes, strict=True))
         equations = [a3, a2, a1, a0, sp.expand(a2 * a1 - a3 * a0)]
@@ -93,7 +95,7 @@ def test_margin_alone_of_a_parameter_in_three_coefficients():
     expected = _alone_closed_form(base, slopes, Fraction(1, 5))
     # -10 x^2 - 12 x + 14 = 0 by hand: x = (-3 + sqrt(44)) / 5, r = x / 0.2 = sqrt(44) - 3
     assert sp.simplify(expected - (sp.sqrt(44) - 3)) == 0
-    result = rank(case, max_seconds=10)
+    result = rank(case)
     _assert_alone_is(_by_name(result)["K"].margin_alone, expected)
 
 
@@ -110,7 +112,7 @@ def test_margin_alone_matches_the_closed_form(roots, slopes, other, tol):
     a, b, c = roots  # nominal polynomial (s + a)(s + b)(s + c): Hurwitz
     base = [1, a + b + c, a * b + b * c + a * c, a * b * c]
     assume(any(slopes))
-    result = rank(_one_parameter_case(base, slopes, other, tol), max_seconds=4)
+    result = rank(_one_parameter_case(base, slopes, other, tol))
     _assert_alone_is(_by_name(result)["K"].margin_alone, _alone_closed_form(base, slopes, tol))
 
 
@@ -131,7 +133,7 @@ def _tie_case():
 
 def test_parameters_are_sorted_most_critical_first_with_ties_broken_by_the_others():
     """A and C tie alone at 2; A stands less with the others at full range, so A, C, B."""
-    result = rank(_tie_case(), max_seconds=15)
+    result = rank(_tie_case())
     assert [p.name for p in result.parameters] == ["A", "C", "B"]
     by = _by_name(result)
     assert by["A"].margin_alone.lower == by["C"].margin_alone.lower == 2
@@ -157,7 +159,7 @@ def _failing_case():
 def test_tightened_tolerance_restores_stability():
     """For the failing design, a2's tightened scale is just below 3/19 and decides stable."""
     case = _failing_case()
-    result = rank(case, max_seconds=15)
+    result = rank(case)
     assert result.robustly_stable is False
     a2 = _by_name(result)["a2"]
     assert a2.restores is True
@@ -165,14 +167,14 @@ def test_tightened_tolerance_restores_stability():
     family = case.family
     i = family.names.index("a2")
     tightened = family.box.scaled(family.nominal, a2.tightened, only=i)
-    assert decide(family, tightened, max_seconds=10).verdict == "stable"
+    assert decide(family, tightened).verdict == "stable"
     beyond = family.box.scaled(family.nominal, Fraction(3, 19) * Fraction(101, 100), only=i)
-    assert decide(family, beyond, max_seconds=10).verdict == "unstable"
+    assert decide(family, beyond).verdict == "unstable"
 
 
 def test_parameter_that_cannot_restore_alone_says_so():
     """Neither a1 nor a0 at nominal makes the failing design stable: restores is False."""
-    result = rank(_failing_case(), max_seconds=15)
+    result = rank(_failing_case())
     by = _by_name(result)
     for name in ("a1", "a0"):
         assert by[name].restores is False
@@ -193,14 +195,14 @@ def test_every_restoring_tightening_decides_stable(roots, slopes, other):
     params = {"K": {"nominal": "1", "tolerance": "0.9"}, "J": {"nominal": "1", "tolerance": "0.9"}}
     formulas = [f"{v} + {d}*(K - 1) + {e}*(J - 1)" for v, d, e in zip(base, slopes, other, strict=True)]
     case = parse_case(_case_text(params, coefficients=formulas))
-    result = rank(case, max_seconds=6)
+    result = rank(case)
     assume(result.robustly_stable is False)
     family = case.family
     event(f"parameters that restore stability alone: {sum(bool(p.restores) for p in result.parameters)}")
     for p in result.parameters:
         if p.restores:
             box = family.box.scaled(family.nominal, p.tightened, only=family.names.index(p.name))
-            assert decide(family, box, max_seconds=5).verdict == "stable"
+            assert decide(family, box).verdict == "stable"
 
 
 # -- acts_through -------------------------------------------------------------------------
@@ -213,7 +215,7 @@ def test_acts_through_names_exactly_the_coefficients_containing_the_parameter():
     params = {"a": {"nominal": "2", "tolerance": "10%"}, "b": {"nominal": "3", "tolerance": "10%"},
               "c": {"nominal": "1", "tolerance": "10%"}}
     case = parse_case(_case_text(params, expression=expression))
-    result = rank(case, max_seconds=10)
+    result = rank(case)
     s = sp.Symbol("s")
     symbols = {n: sp.Symbol(n) for n in params}
     poly = sp.Poly(sp.expand(sp.sympify(expression.replace("^", "**"), locals={**symbols, "s": s})), s)
@@ -232,7 +234,7 @@ def test_acts_through_names_exactly_the_coefficients_containing_the_parameter():
 
 def test_rank_json_has_name_and_margin_alone():
     """as_dict: parameters, a non-empty list of {name, margin_alone (number), ...}."""
-    data = rank(_tie_case(), max_seconds=10).as_dict()
+    data = rank(_tie_case()).as_dict()
     assert [p["name"] for p in data["parameters"]] == ["A", "C", "B"]
     assert all(isinstance(p["margin_alone"], float) for p in data["parameters"])
     assert data["parameters"][0]["margin_alone"] == 2.0
@@ -241,7 +243,7 @@ def test_rank_json_has_name_and_margin_alone():
 def test_fixed_parameter_has_no_tolerance_to_rank():
     """A parameter with zero tolerance is reported at the cap, never as critical."""
     params = {"a": {"nominal": "3", "tolerance": "0"}, "b": {"nominal": "4", "tolerance": "0.5"}}
-    result = rank(parse_case(_case_text(params, coefficients=["1", "a", "b", "5"])), max_seconds=10)
+    result = rank(parse_case(_case_text(params, coefficients=["1", "a", "b", "5"])))
     assert [p.name for p in result.parameters] == ["b", "a"]
     fixed = _by_name(result)["a"]
     assert fixed.margin_alone.lower == 100 and fixed.margin_alone.upper is None

@@ -28,7 +28,7 @@ from robust.render.figures import FIGURE_NAMES
 
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
 IDS = [path.stem for path in CASES]
-QUICK = {"max_seconds": 5.0, "yield_draws": 2000, "seed": 0}
+QUICK = {"max_boxes": 2000, "yield_draws": 2000, "seed": 0}
 PNG_MAGIC = b"\x89PNG\r\n\x1a\n"
 
 
@@ -222,7 +222,7 @@ def test_cli_report_json_is_one_document_with_progress_on_stderr(tmp_path):
     """`robust report --json` prints result.json's content on stdout, stages on stderr, exit 0."""
     unstable = next(p for p in CASES if p.stem == "interval_unstable")
     result = CliRunner().invoke(main, ["report", str(unstable), "-o", str(tmp_path / "r"), "--json",
-                                       "--max-seconds", "3", "--draws", "500"])
+                                       "--draws", "500"])
     assert result.exit_code == 0, result.output
     data = json.loads(result.stdout)
     assert data["check"]["verdict"] == "unstable"
@@ -239,7 +239,7 @@ def test_report_escapes_user_text(tmp_path):
         '[parameters.a1]\nrange = [2, 3]\nnote = "<b>bold</b>"\n'
         '[parameters.a0]\nrange = [1, 2]\n'
         '[polynomial]\ncoefficients = ["1", "a1", "a0"]\n', encoding="utf-8")
-    analysis = analyse(load_case(case_file), max_seconds=2, yield_draws=200)
+    analysis = analyse(load_case(case_file), yield_draws=200)
     files = write_report(analysis, tmp_path / "report")
     source = files.html.read_text(encoding="utf-8")
     assert "<script>" not in source and "<img src=x" not in source and "<b>bold" not in source

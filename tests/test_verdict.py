@@ -30,7 +30,7 @@ from robust.exact.routh import is_hurwitz
 from robust.analysis.verdict import check, decide
 
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
-QUICK = {"max_seconds": 5.0, "max_boxes": 2000}
+QUICK = {"max_boxes": 2000}
 
 # -- building cases and checking answers independently ----------------------------------------
 
@@ -320,7 +320,7 @@ def test_leading_coefficient_touching_zero_is_never_called_stable():
     family is not robustly stable of degree 3 and there is no rational witness of instability."""
     case, _ = _make({"k": {"range": ["0.5", "2"], "nominal": "1.5"}}, ["(k - 1)^2", "2", "3", "1"])
     start = time.perf_counter()
-    result = check(case, max_seconds=2.0, max_boxes=200)
+    result = check(case, max_boxes=200)
     assert time.perf_counter() - start < 10
     assert result.verdict == "undecided"
     assert 0 < result.unresolved <= 1
@@ -338,7 +338,7 @@ def test_irrational_boundary_point_leaves_the_verdict_undecided():
     # closed form (Gantmacher 1959, from memory): a2*a1 - a3*a0 = (k^2 - 2)^2, zero only at sqrt(2)
     assert sp.solve(sp.Symbol("k") ** 2 - 2, sp.Symbol("k")) == [-sp.sqrt(2), sp.sqrt(2)]
     start = time.perf_counter()
-    result = check(case, max_seconds=2.0, max_boxes=300)
+    result = check(case, max_boxes=300)
     assert time.perf_counter() - start < 10
     assert result.verdict == "undecided"
     assert 0 < result.unresolved <= 1
@@ -354,7 +354,7 @@ def test_tiny_box_budget_on_a_multilinear_case_is_undecided():
     finish its subdivision and says so."""
     case = load_case(Path(__file__).resolve().parent.parent / "cases" / "buck_voltage_loop.toml")
     start = time.perf_counter()
-    result = check(case, max_seconds=5.0, max_boxes=3)
+    result = check(case, max_boxes=3)
     assert time.perf_counter() - start < 10
     assert result.overbound.stable is False
     assert result.verdict == "undecided"
@@ -438,14 +438,14 @@ def test_products_of_stable_factors_are_never_refuted_and_sub_boxes_stay_proven(
     any sub-box is proven stable too."""
     case, _ = made
     family = case.family
-    result = decide(family, max_seconds=2.0, max_boxes=400)
+    result = decide(family, max_boxes=400)
     event(f"{result.verdict} {result.method}")
     assert result.verdict != "unstable"
     if result.verdict != "stable":
         return
     sub = data.draw(sub_boxes(family.box))
     assert all(a <= c <= d <= b for (a, b), (c, d) in zip(family.box.intervals, sub.intervals, strict=True))
-    assert decide(family, box=sub, max_seconds=4.0, max_boxes=2000).verdict == "stable"
+    assert decide(family, box=sub, max_boxes=2000).verdict == "stable"
 
 
 _weights = st.sampled_from([Fraction(-1), Fraction(-1, 2), Fraction(0), Fraction(1, 2), Fraction(1)])
@@ -492,7 +492,7 @@ def test_verdict_never_contradicts_dense_sampling_and_witnesses_verify(made, see
     """If exact sampling finds an unstable point the verdict is not 'stable'; every reported
     witness lies in the box and has a root with Re >= 0 (sympy rebuild + mpmath)."""
     case, text = made
-    result = decide(case.family, max_seconds=1.0, max_boxes=150)
+    result = decide(case.family, max_boxes=150)
     rng = np.random.default_rng(seed)
     box = _box_from_text(text)
     points = _grid(box, 3) + _random_points(box, 120, rng)

@@ -14,9 +14,10 @@ from dataclasses import dataclass
 from fractions import Fraction
 
 from ..exact.numbers import format_fraction, short_between
+from .outcomes import Verdict
 from .verdict import Witness
 
-__all__ = ["Bracket", "Tester", "bisect_margin", "float_down", "float_up"]
+__all__ = ["Bracket", "Tester", "Work", "bisect_margin", "float_down", "float_up", "just_below"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -61,64 +62,97 @@ def float_up(x: Fraction) -> float:
     return math.nextafter(f, math.inf) if Fraction(f) < x else f
 
 
-Tester = Callable[[Fraction, float], tuple[str, Witness | None]]
+#: test(rho) -> (verdict over box(rho), witness or None); its work budget is its own.
+Tester = Callable[[Fraction], tuple[Verdict, Witness | None]]
+Tighten = Callable[[Witness], tuple[Fraction, Witness]]
 
 
-def bisect_margin(test: Tester, cap: Fraction, rel_tol: float, deadline: float,
+@dataclass
+class Work:
+    """The work budget of a bracket search: tests counted (reproducible); the clock is a
+    safety stop whose firing is reported."""
+
+    max_tests: int
+    deadline: float
+    tests: int = 0
+    clock_fired: bool = False
+    #: undecided tests cost a whole decision budget each and cluster near the boundary:
+    #: after this many the search stops
+    max_undecided: int = 3
+    undecided: int = 0
+
+    def spent(self) -> bool:
+        if self.tests >= self.max_tests or self.undecided >= self.max_undecided:
+            return True
+        if time.perf_counter() >= self.deadline:
+            self.clock_fired = True
+        return self.clock_fired
+
+
+def just_below(value: Fraction, rel_tol: Fraction) -> Fraction:
+    """A short rational in [value (1 - rel_tol/2), value (1 - rel_tol/4)]."""
+    return short_between(value * (1 - rel_tol / 2), value * (1 - rel_tol / 4)) or value * (1 - rel_tol / 4)
+
+
+def bisect_margin(test: Tester, end: Fraction, end_testable: bool, rel_tol: Fraction, work: Work,
                   start: Fraction = Fraction(1), lower: Fraction = Fraction(0),
                   upper: Fraction | None = None, witness: Witness | None = None,
-                  tighten: Callable[[Witness], tuple[Fraction, Witness]] | None = None) -> Bracket:
-    """Certified bracket on the largest rho with ``test(rho) == "stable"``.
+                  tighten: Tighten | None = None) -> Bracket:
+    """Certified bracket on the largest rho in (0, end] with ``test(rho)`` stable.
 
-    ``test(rho, seconds)`` returns ("stable" | "unstable" | "undecided", witness). Assumes
-    monotonicity in rho (nested boxes) and stability at rho = 0. A known proven ``lower``
-    and a known refuted ``upper`` (with its witness) may be passed in. ``tighten`` maps a
-    witness to a smaller scale that still holds a verified witness.
+    Assumes nested boxes (monotone in rho) and stability at rho = 0. ``end`` is where the
+    scaled box stops standing for the loop (or the cap); box(end) itself is tested only when
+    ``end_testable``. A proven ``lower`` and a refuted ``upper`` (with its witness) may be
+    passed in; ``tighten`` maps a witness to a smaller scale that still holds one. An
+    undecided test does not stop the search: it moves on below that point, so the proven end
+    still rises. Returns [lower, upper] with ``upper`` a witness scale, or None when no
+    witness was found below ``end``.
     """
-    note = ""
+    top = end if end_testable else just_below(end, rel_tol)
+    stuck: Fraction | None = None  # the least scale found undecided
     if upper is None:
-        rho = max(min(start, cap), lower)
-        while True:  # grow by doubling until unstable or the cap
-            remaining = deadline - time.perf_counter()
-            if remaining <= 0:
-                return Bracket(lower, None, note="time budget exhausted while bracketing")
-            verdict, w = test(rho, max(remaining / 4, 0.5))
-            if verdict == "stable":
+        rho = max(min(start, top), lower)
+        while not work.spent():  # grow by doubling until unstable, undecided or the top
+            work.tests += 1
+            verdict, w = test(rho)
+            if verdict is Verdict.STABLE:
                 lower = rho
-                if rho >= cap:
-                    return Bracket(lower, None, note=f"stable up to the cap {format_fraction(cap)}")
-                rho = min(rho * 2, cap)
-            elif verdict == "unstable":
-                upper, witness = _upper_from(rho, w, tighten), w
+                if rho >= top:
+                    break
+                rho = min(rho * 2, top)
+            elif verdict is Verdict.UNSTABLE:
+                upper, witness = _upper_from(rho, w, tighten)
                 break
             else:
-                tried = rho
-                rho = (lower + rho) / 2 if lower > 0 else rho / 4
-                if rho < tried / 1000:
-                    return Bracket(lower, None, note="undecided near the start")
-    while (upper - lower) > Fraction(rel_tol) * upper:
-        remaining = deadline - time.perf_counter()
-        if remaining <= 0:
-            note = "time budget exhausted; bracket wider than asked"
+                stuck = rho
+                work.undecided += 1
+                break
+    while not work.spent():
+        high = upper if upper is not None else (stuck if stuck is not None else None)
+        if high is None or (high - lower) <= rel_tol * high:
             break
         # a short rational inside the middle half keeps the exact arithmetic small
-        mid = short_between(lower + (upper - lower) / 4, upper - (upper - lower) / 4) \
-            or (lower + upper) / 2
-        verdict, w = test(mid, max(remaining / 8, 0.5))
-        if verdict == "stable":
+        mid = short_between(lower + (high - lower) / 4, high - (high - lower) / 4) or (lower + high) / 2
+        work.tests += 1
+        verdict, w = test(mid)
+        if verdict is Verdict.STABLE:
             lower = mid
-        elif verdict == "unstable":
-            upper, witness = _upper_from(mid, w, tighten), w
-            if tighten is not None and w is not None:
-                witness = tighten(w)[1]
+        elif verdict is Verdict.UNSTABLE:
+            upper, witness = _upper_from(mid, w, tighten)
         else:
-            note = f"undecided at {float(mid):.9g}; bracket left wider than asked"
-            break
-    return Bracket(lower, upper, witness=witness, note=note)
+            stuck = mid
+            work.undecided += 1
+    notes = []
+    if stuck is not None and (upper is None or stuck < upper):
+        notes.append(f"undecided from {float(stuck):.9g} on within the work budget")
+    if work.clock_fired:
+        notes.append("stopped by the wall-clock safety limit")
+    return Bracket(lower, upper, witness=witness, note="; ".join(notes))
 
 
-def _upper_from(rho: Fraction, witness: Witness | None,
-                tighten: Callable[[Witness], tuple[Fraction, Witness]] | None) -> Fraction:
+def _upper_from(rho: Fraction, witness: Witness | None, tighten: Tighten | None
+                ) -> tuple[Fraction, Witness | None]:
     if tighten is None or witness is None:
-        return rho
-    return min(rho, tighten(witness)[0])
+        return rho, witness
+    tightened, better = tighten(witness)
+    return (tightened, better) if tightened <= rho else (rho, witness)

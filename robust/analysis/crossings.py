@@ -9,28 +9,31 @@ infinity, or a pair r, -r: Orlando's formula, Gantmacher, "The Theory of Matrice
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterable, Sequence
+from dataclasses import dataclass
 from fractions import Fraction
 
 import sympy as sp
 from sympy.polys.matrices import DomainMatrix
 
 from ..exact.hurwitz import hurwitz_matrix
-from ..exact.numbers import short_between
+from ..exact.numbers import format_fraction, short_between
 from ..exact.polynomials import MultiPoly, as_intervals
 from ..model.family import UncertainPolynomial
+from .scaling import Scaling
 from .verdict import Witness
 
 __all__ = [
     "DEFAULT_CAP",
+    "RootBound",
     "crossing_polynomials",
-    "describe_root",
     "exact_interval_margin",
+    "first_crossing",
     "first_positive_root",
+    "path_expressions",
     "path_margin",
     "ray_upper_bound",
     "ray_witness",
-    "scale_of_point",
     "substitute_expressions",
     "tightener",
 ]
@@ -52,89 +55,68 @@ def crossing_polynomials(coeffs: Sequence[sp.Expr]) -> list[sp.Poly]:
     return out
 
 
-def first_positive_root(polys: Sequence[sp.Poly], cap: Fraction) -> tuple[sp.Expr, Fraction, Fraction] | None:
-    """Least real root in (0, cap] over the polynomials: (exact root, isolating low, high)."""
+@dataclass(frozen=True, slots=True)
+class RootBound:
+    """An exact real number r* known by an isolating interval: lower <= r* <= upper (equal
+    when r* is rational); ``text`` is its exact form, ``decimal`` about 15 digits of it."""
+
+    lower: Fraction
+    upper: Fraction
+    text: str
+    decimal: str
+
+    @staticmethod
+    def rational(value: Fraction) -> RootBound:
+        """A rational r*."""
+        return RootBound(value, value, format_fraction(value), f"{float(value):.15g}")
+
+
+def first_positive_root(polys: Sequence[sp.Poly], cap: Fraction) -> RootBound | None:
+    """The least real root in (0, cap] of any of the polynomials (in r), exactly.
+
+    Each polynomial is made square-free first: exact root refinement needs it (a double root
+    in r, as a Hurwitz determinant can have, makes sympy's refinement fail).
+    """
     sup = sp.Rational(cap.numerator, cap.denominator)
-    firsts = []
+    best: tuple[Fraction, Fraction, sp.Poly] | None = None
     for poly in polys:
         if poly.is_zero or poly.degree() <= 0:
             continue
-        for (lo, hi), _ in poly.intervals(inf=0, sup=sup):
+        square_free = poly.sqf_part()
+        for (lo, hi), _ in square_free.intervals(inf=0, sup=sup):
             if hi <= 0:
-                continue  # the root at 0 (cannot happen for a stable start)
-            # isolating intervals of different polynomials overlap in general, so their
-            # coarse ends do not order the roots: refine each least positive root first
+                continue  # a root at 0 (cannot happen for a stable start)
             if lo != hi:
-                lo, hi = poly.refine_root(lo, hi, eps=hi * sp.Rational(1, 10**20))
-            firsts.append((Fraction(int(lo.p), int(lo.q)), Fraction(int(hi.p), int(hi.q)), poly))
-            break  # intervals come sorted: the first positive one is the least
-    if not firsts:
-        return None
-    lo_min, _, poly = min(firsts, key=lambda f: f[0])
-    hi_min = min(f[1] for f in firsts)  # the least root lies in [least low end, least high end]
-    roots = [r for r in poly.real_roots() if r > 0]
-    root = min(roots, key=lambda r: float(r.evalf(30)))
-    # refine the isolating interval to ~1e-15 relative
-    lo_f, hi_f = _refine(poly, root)
-    return root, min(lo_f, lo_min), min(hi_f, hi_min)
-
-
-def _refine(poly: sp.Poly, root: sp.Expr) -> tuple[Fraction, Fraction]:
-    if root.is_Rational:
-        value = Fraction(int(root.p), int(root.q))
-        return value, value
-    value = float(root.evalf(40))
-    eps = sp.Rational(1, 10**18) * max(1, abs(int(value)) + 1)
-    for (lo, hi), _ in poly.intervals(eps=eps):
-        lo_f, hi_f = Fraction(int(lo.p), int(lo.q)), Fraction(int(hi.p), int(hi.q))
-        if lo_f <= Fraction(value) * (1 + Fraction(1, 10**9)) and hi_f >= Fraction(value) * (1 - Fraction(1, 10**9)):
-            return lo_f, hi_f
-    exact = Fraction(value)
-    return exact, exact
-
-
-def describe_root(root: sp.Expr) -> tuple[str, str]:
-    text = sp.sstr(root)
-    if len(text) > 200:
-        poly = sp.minimal_polynomial(root, _R) if not isinstance(root, sp.CRootOf) else root.poly
-        text = f"root of {sp.sstr(poly.as_expr() if hasattr(poly, 'as_expr') else poly)} near {float(root.evalf(20)):.12g}"
-    return text, sp.sstr(root.evalf(20))
-
-
-def path_margin(family: UncertainPolynomial, index: int, cap: Fraction = DEFAULT_CAP,
-                others: Sequence[Fraction] | None = None) -> tuple[Fraction, str | None, str | None]:
-    """Exact margin of one parameter alone (the others fixed at ``others``, default nominal).
-
-    Returns (value as a close rational, exact text, decimal text); the value is the cap
-    when the polynomial stays Hurwitz along both directions up to the cap.
-    """
-    point = list(others if others is not None else family.nominal)
-    nom = family.nominal[index]
-    lo, hi = family.box.low[index], family.box.high[index]
-    best = None
-    for end, span in ((hi, hi - nom), (lo, nom - lo)):
-        if span == 0:
-            continue
-        direction = 1 if end >= nom else -1
-        symbols = []
-        for i, v in enumerate(point):
-            if i == index:
-                symbols.append(sp.Rational(nom.numerator, nom.denominator)
-                               + direction * sp.Rational(span.numerator, span.denominator) * _R)
-            else:
-                symbols.append(sp.Rational(v.numerator, v.denominator))
-        coeffs = [substitute_expressions(c, symbols) for c in family.coefficients]
-        found = first_positive_root(crossing_polynomials(coeffs), cap)
-        if found is not None and (best is None or found[1] < best[1]):
-            best = found
+                lo, hi = square_free.refine_root(lo, hi, eps=hi * sp.Rational(1, 10**20))
+            bound = (Fraction(int(lo.p), int(lo.q)), Fraction(int(hi.p), int(hi.q)), square_free)
+            if best is None or bound[0] < best[0]:
+                best = bound
+            break  # intervals come sorted: the first positive one is this polynomial's least
     if best is None:
-        return cap, None, None
-    root, lo_f, hi_f = best
-    text, dec = describe_root(root)
-    return lo_f, text, dec
+        return None
+    lo_f, hi_f, poly = best
+    if lo_f == hi_f:
+        return RootBound.rational(lo_f)
+    return RootBound(lo_f, hi_f, _root_text(poly, lo_f, hi_f), f"{float((lo_f + hi_f) / 2):.15g}")
+
+
+def _root_text(poly: sp.Poly, lo: Fraction, hi: Fraction) -> str:
+    """Exact text of the root of ``poly`` isolated in [lo, hi]: radicals up to degree 2,
+    else "root of q(r) in [lo, hi]" with q the irreducible factor that has it."""
+    low, high = sp.Rational(lo.numerator, lo.denominator), sp.Rational(hi.numerator, hi.denominator)
+    for factor, _ in poly.factor_list()[1]:
+        if factor.count_roots(low, high) == 0:
+            continue
+        if factor.degree() <= 2:
+            for root in sp.roots(factor, filter="R"):
+                if low <= root <= high:
+                    return sp.sstr(sp.nsimplify(root))
+        return f"root of {sp.sstr(factor.as_expr())} near {float((lo + hi) / 2):.15g}"
+    return f"root near {float((lo + hi) / 2):.15g}"
 
 
 def substitute_expressions(poly: MultiPoly, values: Sequence[sp.Expr]) -> sp.Expr:
+    """The polynomial with each parameter replaced by a sympy expression (in r)."""
     total = sp.Integer(0)
     for e, c in poly.terms:
         term = sp.Rational(int(c.numerator), int(c.denominator))
@@ -145,48 +127,66 @@ def substitute_expressions(poly: MultiPoly, values: Sequence[sp.Expr]) -> sp.Exp
     return sp.expand(total)
 
 
-def scale_of_point(family: UncertainPolynomial, point: Sequence[Fraction]) -> Fraction:
-    """The least rho with ``point`` inside box(rho)."""
-    rho = Fraction(0)
-    for x, n, lo, hi in zip(point, family.nominal, family.box.low, family.box.high, strict=True):
-        if x > n:
-            rho = max(rho, (x - n) / (hi - n)) if hi > n else rho
-        elif x < n:
-            rho = max(rho, (n - x) / (n - lo)) if lo < n else rho
-    return rho
+def _q(x: Fraction) -> sp.Rational:
+    return sp.Rational(x.numerator, x.denominator)
+
+
+def path_expressions(path: Sequence[tuple[Fraction, Fraction]]) -> list[sp.Expr]:
+    """Per parameter a + b*r, as sympy expressions."""
+    return [_q(a) + _q(b) * _R for a, b in path]
+
+
+def first_crossing(family: UncertainPolynomial, paths: Iterable[Sequence[tuple[Fraction, Fraction]]],
+                   cap: Fraction) -> RootBound | None:
+    """The least r in (0, cap] where the polynomial stops being Hurwitz along any of the
+    straight paths (value a + b*r per parameter), starting from a Hurwitz point at r = 0."""
+    polys: list[sp.Poly] = []
+    for path in paths:
+        values = path_expressions(path)
+        polys += crossing_polynomials([substitute_expressions(c, values) for c in family.coefficients])
+    return first_positive_root(polys, cap)
+
+
+def path_margin(family: UncertainPolynomial, index: int, cap: Fraction = DEFAULT_CAP) -> RootBound | None:
+    """Exact first crossing of parameter ``index`` alone (the others at nominal), over the two
+    directions of its range; None when the polynomial stays Hurwitz up to ``cap``."""
+    scaling = Scaling.one(family, index, others_full=False)
+    return first_crossing(family, scaling.vertex_paths((index,)), cap)
 
 
 def ray_witness(family: UncertainPolynomial, target: Sequence[Fraction], limit: Fraction
-                 ) -> tuple[Fraction, Witness] | None:
-    """First exact crossing on the ray nominal + t (target - nominal), 0 < t <= limit, and a
-    verified witness just beyond it: (rho of the witness, witness)."""
-    from .verdict import _make_witness
+                ) -> tuple[Fraction, Witness] | None:
+    """First exact crossing on the ray nominal + t (target - nominal), 0 < t < limit, and a
+    verified witness just beyond it, strictly below ``limit``: (rho of the witness, witness)."""
+    from .verdict import make_witness
 
-    values = [sp.Rational(n.numerator, n.denominator)
-              + sp.Rational((c - n).numerator, (c - n).denominator) * _R
-              for n, c in zip(family.nominal, target, strict=True)]
-    found = first_positive_root(crossing_polynomials([substitute_expressions(c, values) for c in family.coefficients]), limit)
+    scaling = Scaling.everything(family)
+    path = [(n, c - n) for n, c in zip(family.nominal, target, strict=True)]
+    found = first_crossing(family, [path], limit)
     if found is None:
         return None
-    _, _, hi_f = found
+    hi_f = found.upper
     for beyond in (short_between(hi_f, hi_f * (1 + Fraction(1, 10**9))), hi_f * (1 + Fraction(1, 10**7)),
                    hi_f * Fraction(101, 100)):
         if beyond is None:
             continue
         point = tuple(n + beyond * (c - n) for n, c in zip(family.nominal, target, strict=True))
-        rho = scale_of_point(family, point)
-        w = _make_witness(family, point, "point on a ray from nominal", family.box.scaled(family.nominal, rho))
+        rho = scaling.scale_of_point(point)
+        if rho >= limit:
+            continue
+        w = make_witness(family, point, "point on a ray from nominal", scaling.box(rho))
         if w is not None:
             return rho, w
     return None
 
 
-def tightener(family: UncertainPolynomial) -> Callable[[Witness], tuple[Fraction, Witness]]:
+def tightener(family: UncertainPolynomial, limit: Fraction) -> Callable[[Witness], tuple[Fraction, Witness]]:
     """Slide a witness towards nominal along its ray, to the first crossing."""
+    scaling = Scaling.everything(family)
 
     def tighten(witness: Witness) -> tuple[Fraction, Witness]:
-        rho = scale_of_point(family, witness.point)
-        found = ray_witness(family, witness.point, Fraction(1))
+        rho = scaling.scale_of_point(witness.point)
+        found = ray_witness(family, witness.point, Fraction(1) if rho == 0 else min(Fraction(1), limit / rho))
         if found is not None and found[0] <= rho:
             return found
         return rho, witness
@@ -194,11 +194,14 @@ def tightener(family: UncertainPolynomial) -> Callable[[Witness], tuple[Fraction
     return tighten
 
 
-def ray_upper_bound(family: UncertainPolynomial, cap: Fraction, rays: int = 64, seed: int = 0):
-    """An upper bound on rho* from straight rays nominal -> corner: (rho, witness) or None.
+def ray_upper_bound(family: UncertainPolynomial, limit: Fraction, rays: int = 64, seed: int = 0
+                    ) -> tuple[Fraction, Witness] | None:
+    """An upper bound on rho* below ``limit`` from straight rays nominal -> corner:
+    (rho, witness) or None.
 
-    Floats pick the rays that leave the stable region first; their first crossing is then
-    found exactly (as for one parameter) and a short rational just beyond it is verified.
+    Floats pick the rays that leave the stable region first (a seeded choice, so the same
+    rays every run); their first crossing is then found exactly and a short rational just
+    beyond it is verified.
     """
     import numpy as np
 
@@ -220,13 +223,16 @@ def ray_upper_bound(family: UncertainPolynomial, cap: Fraction, rays: int = 64, 
     directions = np.zeros((len(signs), k))
     for j, i in enumerate(free):
         directions[:, i] = np.where(signs[:, j] > 0, up[i], -down[i])
-    grid = np.concatenate([np.linspace(0, 1, 41)[1:], np.geomspace(1, float(cap), 60)[1:]])
+    top = float(limit)
+    grid = np.concatenate([np.linspace(0, min(1.0, top), 41)[1:],
+                           np.geomspace(1.0, top, 60)[1:] if top > 1 else np.array([])])
     first = np.full(len(directions), np.inf)
-    for t in grid:
-        points = nominal + t * directions
-        bad = (batch_worst_angle(family.coefficients_float(points)) > 0) & ~np.isfinite(first)
-        first[bad] = t
-    order = [int(i) for i in np.argsort(first) if np.isfinite(first[i])][:3]
+    with np.errstate(all="ignore"):
+        for t in grid:
+            points = nominal + t * directions
+            bad = (batch_worst_angle(family.coefficients_float(points)) > 0) & ~np.isfinite(first)
+            first[bad] = t
+    order = [int(i) for i in np.argsort(first, kind="stable") if np.isfinite(first[i])][:3]
     best = None
     for idx in order:
         corner = []
@@ -236,38 +242,45 @@ def ray_upper_bound(family: UncertainPolynomial, cap: Fraction, rays: int = 64, 
                 corner.append(family.box.high[i] if signs[idx][j] > 0 else family.box.low[i])
             else:
                 corner.append(family.nominal[i])
-        found = ray_witness(family, corner, cap)
+        found = ray_witness(family, corner, limit)
         if found is not None and (best is None or found[0] < best[0]):
             best = found
     return best
 
 
-def exact_interval_margin(family: UncertainPolynomial, cap: Fraction):
-    """rho* for an independent family with monotone coefficients over box(cap), else None."""
+def exact_interval_margin(family: UncertainPolynomial, limit: Fraction) -> tuple[bool, RootBound | None]:
+    """The first crossing of box(rho) for rho in (0, limit], exactly, for a family in which no
+    parameter enters two coefficients and every coefficient is monotone in each parameter
+    over box(limit): (True, the crossing or None when nothing crosses up to ``limit``);
+    (False, None) when the family is not of that kind.
+
+    Every Kharitonov polynomial of box(rho) then has coefficients polynomial in rho, and the
+    family first fails where one of them loses stability or a coefficient's lower end
+    reaches zero (Kharitonov 1978).
+    """
     if family.structure != "independent":
-        return None
-    big = family.box.scaled(family.nominal, cap)
+        return False, None
+    big = family.box.scaled(family.nominal, limit)
     intervals = as_intervals(big.intervals)
     n = family.degree
     lows, highs = [], []
     for k, coeff in enumerate(family.coefficients):
         signs = coeff.derivative_signs(intervals, family.derivatives()[k])
         if any(s is None for s in signs):
-            return None
+            return False, None
         ends = []
         for want_high in (False, True):
             values = []
             for i, s in enumerate(signs):
                 nom = family.nominal[i]
-                nom_q = sp.Rational(nom.numerator, nom.denominator)
                 up = family.box.high[i] - nom
                 down = nom - family.box.low[i]
                 if s == 0:
-                    values.append(nom_q)
+                    values.append(_q(nom))
                 elif (s > 0) == want_high:
-                    values.append(nom_q + sp.Rational(up.numerator, up.denominator) * _R)
+                    values.append(_q(nom) + _q(up) * _R)
                 else:
-                    values.append(nom_q - sp.Rational(down.numerator, down.denominator) * _R)
+                    values.append(_q(nom) - _q(down) * _R)
             ends.append(substitute_expressions(coeff, values))
         lows.append(ends[0])
         highs.append(ends[1])
@@ -279,4 +292,4 @@ def exact_interval_margin(family: UncertainPolynomial, cap: Fraction):
                     ("high", "low", "low", "high"), ("low", "high", "high", "low")):
         vertex = [lows[k] if pattern[(n - k) % 4] == "low" else highs[k] for k in range(n + 1)]
         polys += crossing_polynomials(vertex)
-    return first_positive_root(polys, cap)
+    return True, first_positive_root(polys, limit)

@@ -1,33 +1,40 @@
 """The decay-rate margin: the largest sigma with every root of every member in Re(s) < -sigma.
 
 Found on the shifted family p(s - sigma), which is Hurwitz exactly when every root of p has
-real part below -sigma.
+real part below -sigma: a certified bracket (proven below, a verified slow member above).
 """
 
 from __future__ import annotations
 
-import math
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from fractions import Fraction
 
 from ..exact.numbers import short_between
-from ..exact.polynomials import MultiPoly
 from ..exact.routh import routh_table
-from ..model.family import UncertainPolynomial
-from .bracket import Bracket, bisect_margin
+from ..model.family import UncertainPolynomial, shifted_family
+from .bracket import Bracket, Work, bisect_margin, just_below
+from .outcomes import Outcome, Verdict, requirement_outcome
+from .requirements import DEFAULT_REQUIREMENT_BOXES, RequirementCheck, decide_requirement
 from .verdict import Witness, decide
 
-__all__ = ["DecayResult", "decay_rate", "shifted_family"]
+__all__ = ["DecayResult", "decay_rate"]
 
 
 @dataclass(frozen=True, slots=True)
 class DecayResult:
-    """Certified bracket on sigma*, with the 2 % settling-time reading 4/sigma."""
+    """Certified bracket on sigma*, the requirement's outcome, and the 2 % settling-time
+    reading 4/sigma."""
 
     bracket: Bracket
     requirement: Fraction | None
-    passed: bool | None
+    outcome: Outcome | None
+    direct: RequirementCheck | None = None
+
+    @property
+    def passed(self) -> bool | None:
+        """True, False or None (undecided or no requirement)."""
+        return None if self.outcome is None else self.outcome.passed
 
     def settling_time(self) -> float | None:
         """About 4/sigma seconds to settle within 2 % (common practice, no source)."""
@@ -39,23 +46,9 @@ class DecayResult:
         data = self.bracket.as_dict()
         data["settling_time_2pct_at_most"] = self.settling_time()
         data["requirement"] = None if self.requirement is None else float(self.requirement)
+        data["outcome"] = None if self.outcome is None else self.outcome.value
         data["passed"] = self.passed
         return data
-
-
-def shifted_family(family: UncertainPolynomial, sigma: Fraction) -> UncertainPolynomial:
-    """The family p(s - sigma): Hurwitz exactly when every root has Re(s) < -sigma."""
-    n = family.degree
-    k_vars = len(family.names)
-    # p(s - sigma) = sum_k a_k (s - sigma)^k, a_k = coefficients[n - k]
-    new = []
-    for j in range(n, -1, -1):  # power j, highest first
-        weights, polys = [], []
-        for k in range(j, n + 1):
-            weights.append(Fraction(math.comb(k, j)) * (-sigma) ** (k - j))
-            polys.append(family.coefficients[n - k])
-        new.append(MultiPoly.linear_combination(k_vars, polys, weights))
-    return family.with_coefficients(new)
 
 
 def _decay_upper(family: UncertainPolynomial, seed: int = 0):
@@ -93,41 +86,51 @@ def _decay_upper(family: UncertainPolynomial, seed: int = 0):
 
 
 def decay_rate(family: UncertainPolynomial, requirement: Fraction | None = None,
-               rel_tol: float = 1e-6, max_seconds: float = 30.0, max_boxes: int = 5000) -> DecayResult:
-    """Certified bracket on the worst-case decay rate over the family's box."""
-    deadline = time.perf_counter() + max_seconds
+               rel_tol: float = 1e-6, max_boxes: int = 2000, max_tests: int = 48,
+               max_seconds: float = 600.0, requirement_boxes: int = DEFAULT_REQUIREMENT_BOXES
+               ) -> DecayResult:
+    """Certified bracket on the worst-case decay rate over the family's box.
 
-    def test(sigma: Fraction, seconds: float) -> tuple[str, Witness | None]:
+    Work is counted (``max_tests`` decisions of at most ``max_boxes`` boxes each), so the
+    result does not depend on the machine; ``max_seconds`` is only a safety stop.
+    """
+    work = Work(max_tests, time.perf_counter() + max_seconds)
+    tol = Fraction(rel_tol)
+
+    def test(sigma: Fraction) -> tuple[Verdict, Witness | None]:
         res = decide(shifted_family(family, sigma) if sigma else family, family.box,
-                     max_seconds=seconds, max_boxes=max_boxes, search=sigma == 0)
+                     max_seconds=max(work.deadline - time.perf_counter(), 0.01),
+                     max_boxes=max_boxes, search=sigma == 0)
+        work.clock_fired |= res.safety_stop
         return res.verdict, res.witness
 
-    verdict, witness = test(Fraction(0), max_seconds / 3)
-    if verdict != "stable":
-        note = ("the family is not robustly stable: no positive decay rate" if verdict == "unstable"
+    verdict, witness = test(Fraction(0))
+    if verdict is not Verdict.STABLE:
+        note = ("the family is not robustly stable: no positive decay rate" if verdict is Verdict.UNSTABLE
                 else "robust stability itself is undecided")
-        return DecayResult(Bracket(Fraction(0), Fraction(0) if verdict == "unstable" else None,
-                                   witness=witness, note=note),
-                           requirement, False if requirement is not None and verdict == "unstable" else None)
-    found = _decay_upper(family)
-    if found is not None:
-        upper, witness = found
-        lower = short_between(upper * (1 - Fraction(rel_tol) / 2), upper * (1 - Fraction(rel_tol) / 4)) \
-            or upper * (1 - Fraction(rel_tol) / 2)
-        verdict, _ = test(lower, max(min(10.0, deadline - time.perf_counter()), 0.5))
-        if verdict == "stable":
-            bracket = Bracket(lower, upper, witness=witness)
-        else:
-            bracket = bisect_margin(test, upper, rel_tol, deadline, upper=upper, witness=witness)
+        bracket = Bracket(Fraction(0), Fraction(0) if verdict is Verdict.UNSTABLE else None,
+                          witness=witness, note=note)
     else:
-        bracket = Bracket(Fraction(0), None, note="no slow member found")
-    passed = None
-    if requirement is not None:
-        if bracket.lower >= requirement:
-            passed = True
-        elif bracket.upper is not None and bracket.upper <= requirement:
-            passed = False
+        found = _decay_upper(family)
+        if found is None:
+            bracket = Bracket(Fraction(0), None, note="no slow member found")
         else:
-            verdict, _ = test(requirement, max(deadline - time.perf_counter(), 2.0))
-            passed = True if verdict == "stable" else False if verdict == "unstable" else None
-    return DecayResult(bracket, requirement, passed)
+            upper, witness = found
+            lower = just_below(upper, tol)
+            work.tests += 1
+            if test(lower)[0] is Verdict.STABLE:
+                bracket = Bracket(lower, upper, witness=witness)
+            else:
+                bracket = bisect_margin(test, upper, False, tol, work, upper=upper, witness=witness)
+    if requirement is None:
+        return DecayResult(bracket, None, None)
+    direct = decide_requirement(family, "decay_rate", requirement, requirement_boxes,
+                                max(work.deadline - time.perf_counter(), 0.01))
+    outcome = requirement_outcome(requirement, direct.direct, bracket.lower, bracket.upper)
+    # the bracket agrees with the direct decision: a proven requirement raises the proven end,
+    # a refuted one lowers the witnessed end
+    if direct.direct is Verdict.STABLE and bracket.lower < requirement:
+        bracket = replace(bracket, lower=requirement)
+    elif direct.direct is Verdict.UNSTABLE and (bracket.upper is None or bracket.upper > requirement):
+        bracket = replace(bracket, upper=requirement, witness=direct.witness)
+    return DecayResult(bracket, requirement, outcome, direct)

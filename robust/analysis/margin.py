@@ -1,7 +1,8 @@
 """Robust margins: how far the tolerances can grow, and the guaranteed decay rate.
 
 rho* is the largest scale of every tolerance half-width about nominal for which the
-family stays robustly stable (box(rho): nominal - rho (nominal - low) .. nominal +
+family stays robustly stable and box(rho) still stands for the loop (every part strictly
+inside its physical limits, the degree kept, every divided-out factor of one sign) (box(rho): nominal - rho (nominal - low) .. nominal +
 rho (high - nominal)). It is reported as a certified bracket [lower, upper]: the family is
 proven stable over box(lower) and a verified witness lies in box(upper).
 
@@ -12,7 +13,12 @@ proven stable over box(lower) and a verified witness lies in box(upper).
   Orlando's formula, Gantmacher 1959, ch. XV). rho* is the least positive real root of those
   polynomials: an exact algebraic number (sympy real-root isolation).
 * One parameter alone (rank): the same argument along the two directions of its range.
-* Otherwise: bisection on rho with the decision ladder of :mod:`robust.analysis.verdict` at each step.
+* Otherwise: straight rays nominal -> corner give a verified upper end, and bisection on rho
+  with the decision ladder of :mod:`robust.analysis.verdict` the proven lower end.
+
+What ends rho* is reported (:class:`~robust.analysis.limits.ScaleEnd`): a crossing (with a
+witness just beyond), a physical limit, a degree loss, a divided-out factor, or the cap.
+Work is counted (decisions and boxes), so the same input gives the same bracket anywhere.
 
 The decay-rate margin sigma* is the largest sigma with every root of every member in
 Re(s) < -sigma, found the same way on the shifted family p(s - sigma).
@@ -21,43 +27,60 @@ Re(s) < -sigma, found the same way on the shifted family p(s - sigma).
 from __future__ import annotations
 
 import time
-from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from fractions import Fraction
 
 from ..exact.numbers import short_between
 from ..exact.routh import routh_table
-from ..model.family import Box, UncertainPolynomial
-from .bracket import Bracket, Tester, bisect_margin, float_down, float_up
-from .crossings import DEFAULT_CAP, describe_root, exact_interval_margin, ray_upper_bound, tightener
+from ..model.family import UncertainPolynomial
+from .bracket import Bracket, Work, bisect_margin, float_down, float_up, just_below
+from .crossings import DEFAULT_CAP, exact_interval_margin, ray_upper_bound, tightener
 from .decay import DecayResult, decay_rate
+from .limits import ScaleEnd, end_of_scaling
+from .outcomes import LimitKind, Outcome, Verdict, requirement_outcome, untestable
+from .requirements import DEFAULT_REQUIREMENT_BOXES, RequirementCheck, decide_requirement
+from .scaling import Scaling
 from .verdict import Witness, decide
 
-__all__ = ["MarginResult", "margin"]
+__all__ = ["DEFAULT_MARGIN_BOXES", "DEFAULT_MARGIN_TESTS", "MarginResult", "crossing_end", "margin"]
 
+#: Box budget of each decision inside a margin search, and how many decisions it may make.
+DEFAULT_MARGIN_BOXES = 2000
+DEFAULT_MARGIN_TESTS = 48
 
 
 @dataclass(frozen=True, slots=True)
 class MarginResult:
-    """Result of :func:`margin`."""
+    """Result of :func:`margin`: the bracket on rho*, what ends it, the requirement."""
 
     margin: Bracket
     method: str
     decay: DecayResult | None
     requirement: Fraction | None
-    passed: bool | None
+    outcome: Outcome | None
+    limit: ScaleEnd
     seconds: float
+    direct: RequirementCheck | None = None
+    safety_stop: bool = False
+
+    @property
+    def passed(self) -> bool | None:
+        """The margin requirement: True, False or None (undecided or none set)."""
+        return None if self.outcome is None else self.outcome.passed
 
     def as_dict(self) -> dict[str, object]:
-        """JSON per DESIGN.md section 5: margin {lower, upper}, exact, decay_rate."""
+        """JSON per DESIGN.md section 5: margin {lower, upper}, exact, limit, decay_rate."""
         data: dict[str, object] = {
             "margin": {"lower": float_down(self.margin.lower),
                        "upper": None if self.margin.upper is None else float_up(self.margin.upper)},
             "exact": self.margin.exact,
+            "limit": self.limit.as_dict(),
             "margin_detail": self.margin.as_dict(),
             "method": self.method,
             "requirement": None if self.requirement is None else float(self.requirement),
+            "outcome": None if self.outcome is None else self.outcome.value,
             "passed": self.passed,
+            "safety_stop": self.safety_stop,
             "seconds": round(self.seconds, 4),
         }
         if self.margin.witness is not None:
@@ -70,21 +93,31 @@ class MarginResult:
         return data
 
 
-def _family_tester(family: UncertainPolynomial, box_of: Callable[[Fraction], Box],
-                   max_boxes: int) -> Tester:
-    def test(rho: Fraction, seconds: float) -> tuple[str, Witness | None]:
-        box = box_of(rho)
-        if not family.valid_on(box):
-            return "undecided", None
-        res = decide(family, box, max_seconds=seconds, max_boxes=max_boxes)
-        return res.verdict, res.witness
-
-    return test
+def crossing_end(family: UncertainPolynomial, bracket: Bracket, exact: str | None = None,
+                 value: Fraction | None = None) -> ScaleEnd:
+    """The end of a bracket closed by a witness: a crossing, named by the parameters the
+    witness moves to the edge of its scaled box."""
+    upper = bracket.upper if bracket.upper is not None else bracket.lower
+    names: tuple[str, ...] = ()
+    if bracket.witness is not None and upper > 0:
+        fam = family
+        edge = []
+        for name, x, n, lo, hi in zip(fam.names, bracket.witness.point, fam.nominal, fam.box.low,
+                                      fam.box.high, strict=True):
+            half = (hi - n) if x >= n else (n - lo)
+            if half > 0 and abs(x - n) >= half * upper * Fraction(99, 100):
+                edge.append(name)
+        names = tuple(edge)
+    if value is None:
+        value = short_between(bracket.lower, upper) or bracket.lower
+    return ScaleEnd(LimitKind.CROSSING, names, value, upper, exact)
 
 
 def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float | None = None,
-           max_seconds: float = 60.0, max_boxes: int = 5000, with_decay: bool = True) -> MarginResult:
-    """The robust margin rho* of a case (certified bracket), and its decay-rate margin.
+           max_seconds: float = 600.0, max_boxes: int = DEFAULT_MARGIN_BOXES,
+           max_tests: int = DEFAULT_MARGIN_TESTS, with_decay: bool = True,
+           requirement_boxes: int = DEFAULT_REQUIREMENT_BOXES) -> MarginResult:
+    """The robust margin rho* of a case (certified bracket), what ends it, and the decay rate.
 
     Parameters
     ----------
@@ -92,66 +125,105 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
         Largest scale tried; a family stable up to it is reported as "at least cap".
     rel_tol
         Relative bracket width asked for (default 1e-9 for interval families, 1e-6 otherwise).
+    max_boxes, max_tests
+        The work budget: decisions of at most ``max_boxes`` boxes, at most ``max_tests`` of
+        them for rho* (as many again for the decay rate).
+    max_seconds
+        A wall-clock safety stop, reported when it fires (``safety_stop``).
 
     Examples
     --------
     >>> import robust
     >>> m = robust.margin(robust.load_case("cases/interval_measured.toml"), with_decay=False)
-    >>> m.margin.lower > 1
-    True
+    >>> m.margin.lower > 1, m.limit.kind.value
+    (True, 'crossing')
     """
     started = time.perf_counter()
     family: UncertainPolynomial = getattr(case_or_family, "family", case_or_family)
     requirements = getattr(case_or_family, "requirements", None)
     cap = Fraction(cap) if not isinstance(cap, Fraction) else cap
-    deadline = started + max_seconds
-    nominal = family.coefficients_at(family.nominal)
+    work = Work(max_tests, started + max_seconds)
     decay = None
     if with_decay:
-        decay = decay_rate(family, getattr(requirements, "decay_rate", None),
-                           max_seconds=max_seconds / 3, max_boxes=max_boxes)
+        decay = decay_rate(family, getattr(requirements, "decay_rate", None), max_boxes=max_boxes,
+                           max_tests=max_tests, max_seconds=max_seconds,
+                           requirement_boxes=requirement_boxes)
     req = getattr(requirements, "margin", None)
+    scaling = Scaling.everything(family)
+    tol = Fraction(rel_tol if rel_tol is not None else (1e-9 if family.structure == "independent" else 1e-6))
 
-    def done(bracket: Bracket, method: str) -> MarginResult:
-        passed = None
+    def test(rho: Fraction) -> tuple[Verdict, Witness | None]:
+        box = scaling.box(rho)
+        if untestable(family, box) is not None:  # the validity rule; not met below the end
+            return Verdict.UNDECIDED, None
+        res = decide(family, box, max_seconds=max(work.deadline - time.perf_counter(), 0.01),
+                     max_boxes=max_boxes)
+        work.clock_fired |= res.safety_stop
+        return res.verdict, res.witness
+
+    def done(bracket: Bracket, method: str, limit: ScaleEnd) -> MarginResult:
+        direct = outcome = None
         if req is not None:
-            passed = True if bracket.lower >= req else (
-                False if bracket.upper is not None and bracket.upper < req else None)
-            if passed is None:
-                res = decide(family, family.box.scaled(family.nominal, req), max_seconds=10)
-                passed = True if res.verdict == "stable" else False if res.verdict == "unstable" else None
-        return MarginResult(bracket, method, decay, req, passed, time.perf_counter() - started)
+            direct = decide_requirement(family, "margin", req, requirement_boxes,
+                                        max(work.deadline - time.perf_counter(), 0.01))
+            certified_upper = bracket.upper if limit.kind is LimitKind.CAP else \
+                min(x for x in (bracket.upper, limit.upper) if x is not None)
+            outcome = requirement_outcome(req, direct.direct, bracket.lower, certified_upper)
+            # the bracket agrees with the direct decision
+            if direct.direct is Verdict.STABLE and bracket.lower < req:
+                bracket = replace(bracket, lower=req)
+            elif direct.direct is Verdict.UNSTABLE and (bracket.upper is None or bracket.upper > req):
+                bracket = replace(bracket, upper=req, witness=direct.witness)
+                if limit.kind is not LimitKind.CROSSING or limit.scale > req:
+                    limit = crossing_end(family, bracket)
+        return MarginResult(bracket, method, decay, req, outcome, limit, time.perf_counter() - started,
+                            direct, work.clock_fired)
 
-    if not routh_table(list(nominal)).is_hurwitz:
-        return done(Bracket(Fraction(0), Fraction(0), note="the nominal design is not stable"), "nominal")
-    exact = exact_interval_margin(family, cap)
-    if exact is not None:
-        root, lo_f, hi_f = exact
-        text, dec = describe_root(root)
-        tol = Fraction(rel_tol if rel_tol is not None else 1e-9)
-        # short rationals just outside the isolating interval, within the asked width
-        # strictly inside/outside: a rational root has lo_f == hi_f == root, where the
-        # family is on the stability boundary and neither proof nor witness exists
-        lower = short_between(lo_f * (1 - tol / 2), lo_f * (1 - tol / 4)) or lo_f * (1 - tol / 4)
-        upper = short_between(hi_f * (1 + tol / 4), hi_f * (1 + tol / 2)) or hi_f * (1 + tol / 4)
-        proof = decide(family, family.box.scaled(family.nominal, lower), max_seconds=10, search=False)
-        refute = decide(family, family.box.scaled(family.nominal, upper), max_seconds=10)
-        if proof.verdict == "stable" and refute.verdict == "unstable":
-            return done(Bracket(lower, upper, text, dec, refute.witness), "exact (Kharitonov vertices)")
-    tol = rel_tol if rel_tol is not None else (1e-9 if family.structure == "independent" else 1e-6)
-    tester = _family_tester(family, lambda rho: family.box.scaled(family.nominal, rho), max_boxes)
-    ray = ray_upper_bound(family, cap)
+    nominal = family.coefficients_at(family.nominal)
+    if nominal[0] == 0 or not routh_table(list(nominal)).is_hurwitz:
+        bracket = Bracket(Fraction(0), Fraction(0), note="the nominal design is not stable")
+        return done(bracket, "nominal", ScaleEnd(LimitKind.CROSSING, (), Fraction(0), Fraction(0), "0"))
+    end = end_of_scaling(scaling, cap)
+    top = end.scale if end.kind is LimitKind.CAP else just_below(end.scale, tol)
+
+    def ended(bracket: Bracket, method: str) -> MarginResult:
+        """No witness below the end: the end closes the bracket (a cap leaves it open)."""
+        proven = bracket.lower >= top
+        upper = None if end.kind is LimitKind.CAP else end.scale
+        limit = replace(end, proven=proven, scale=end.scale)
+        return done(replace(bracket, upper=upper, exact=end.exact if proven else None), method, limit)
+
+    applicable, exact = exact_interval_margin(family, end.scale)
+    if exact is not None and exact.upper < end.scale:
+        lower = just_below(exact.lower, tol)
+        upper = short_between(exact.upper * (1 + tol / 4), exact.upper * (1 + tol / 2)) \
+            or exact.upper * (1 + tol / 4)
+        if upper < end.scale:
+            work.tests += 2
+            proof, refute = test(lower), test(upper)
+            if proof[0] is Verdict.STABLE and refute[0] is Verdict.UNSTABLE:
+                bracket = Bracket(lower, upper, exact.text, exact.decimal, refute[1])
+                value = Fraction(exact.decimal) if lower <= Fraction(exact.decimal) <= upper else None
+                return done(bracket, "exact (Kharitonov vertices)",
+                            crossing_end(family, bracket, exact.text, value))
+    elif applicable:
+        # no crossing before the end (Kharitonov vertices, exactly): prove up to it
+        work.tests += 1
+        if test(top)[0] is Verdict.STABLE:
+            return ended(Bracket(top, None), "exact (Kharitonov vertices)")
+    ray = ray_upper_bound(family, end.scale)
     if ray is not None:
         upper, witness = ray
-        lower = short_between(upper * (1 - Fraction(tol) / 2), upper * (1 - Fraction(tol) / 4)) \
-            or upper * (1 - Fraction(tol) / 2)
-        verdict, _ = tester(lower, max(min(20.0, (deadline - time.perf_counter()) / 2), 0.5))
-        if verdict == "stable":
-            return done(Bracket(lower, upper, witness=witness), "ray bound, proven by the decision ladder")
-        bracket = bisect_margin(tester, cap, tol, deadline, upper=upper, witness=witness,
-                                tighten=tightener(family))
-        return done(bracket, "bisection with the decision ladder")
-    bracket = bisect_margin(tester, cap, tol, deadline, tighten=tightener(family))
-    if bracket.upper is None and bracket.lower >= cap:
-        return done(bracket, "bisection (stable up to the cap)")
-    return done(bracket, "bisection with the decision ladder")
+        lower = just_below(upper, tol)
+        work.tests += 1
+        if test(lower)[0] is Verdict.STABLE:
+            bracket = Bracket(lower, upper, witness=witness)
+            return done(bracket, "ray bound, proven by the decision ladder", crossing_end(family, bracket))
+        bracket = bisect_margin(test, end.scale, end.kind is LimitKind.CAP, tol, work, upper=upper,
+                                witness=witness, tighten=tightener(family, end.scale))
+        return done(bracket, "bisection with the decision ladder", crossing_end(family, bracket))
+    bracket = bisect_margin(test, end.scale, end.kind is LimitKind.CAP, tol, work,
+                            tighten=tightener(family, end.scale))
+    if bracket.upper is not None:
+        return done(bracket, "bisection with the decision ladder", crossing_end(family, bracket))
+    return ended(bracket, "bisection with the decision ladder")

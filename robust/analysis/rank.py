@@ -4,26 +4,34 @@ For every parameter:
 
 * ``margin_alone``: the scale of this parameter's tolerance alone (the others at nominal)
   up to which the polynomial stays stable - exact, by the first crossing along the two
-  directions of its range (see :func:`robust.analysis.margin.path_margin`);
+  directions of its range (see :func:`robust.analysis.crossings.path_margin`);
 * ``margin_given_others``: the scale of this parameter's tolerance with every other
   parameter over its full range - a certified bracket by bisection with the decision
   ladder. Below 1 it says how tight this part must be for the design to pass (others as
   given); ``restores`` is False when even a perfect part (scale 0) does not help.
 
-The dependency graph names the coefficients through which each parameter acts.
+Each margin says what ends it (:class:`~robust.analysis.limits.ScaleEnd`): a crossing, the
+part's physical limit, a degree loss, a divided-out factor, or the cap; a part whose margin
+only ends at its limit is not critical for stability, and is ranked after those that cross.
+The dependency graph names the coefficients through which each parameter acts. Work is
+counted, so the ranking is the same on any machine.
 """
 
 from __future__ import annotations
 
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from fractions import Fraction
 
-from ..model.family import Box, UncertainPolynomial
-from ..model.graph import build_graph
 from ..exact.numbers import short_between
-from .bracket import Bracket, bisect_margin
+from ..model.family import UncertainPolynomial
+from ..model.graph import build_graph
+from .bracket import Bracket, Work, bisect_margin, float_down, just_below
 from .crossings import DEFAULT_CAP, path_margin
+from .limits import ScaleEnd, end_of_scaling
+from .margin import crossing_end
+from .outcomes import LimitKind, Verdict, untestable
+from .scaling import Scaling
 from .verdict import Witness, decide
 
 __all__ = ["ParameterRank", "RankResult", "rank"]
@@ -31,23 +39,32 @@ __all__ = ["ParameterRank", "RankResult", "rank"]
 
 @dataclass(frozen=True, slots=True)
 class ParameterRank:
-    """The margins of one parameter and what they mean for its tolerance."""
+    """The margins of one parameter, what ends each, and what they mean for its tolerance."""
 
     name: str
     margin_alone: Bracket
+    limit_alone: ScaleEnd
     margin_given_others: Bracket
+    limit_given_others: ScaleEnd
     coefficients: tuple[tuple[int, str], ...]  # (power, direction)
     tolerance: str
     tightened: Fraction | None  # largest certified scale that restores stability (failing designs)
     restores: bool | None
 
+    @property
+    def crosses(self) -> bool:
+        """Whether a root crossing (not a limit or the cap) ends this part's own margin."""
+        return self.limit_alone.kind is LimitKind.CROSSING
+
     def as_dict(self) -> dict[str, object]:
-        """JSON: name, margin_alone (number), brackets and the graph's coefficients."""
+        """JSON: name, margin_alone (number), limit, brackets and the graph's coefficients."""
         return {
             "name": self.name,
-            "margin_alone": self.margin_alone.as_dict()["lower"],
+            "margin_alone": float_down(self.margin_alone.lower),
+            "limit": self.limit_alone.as_dict(),
             "margin_alone_bracket": self.margin_alone.as_dict(),
-            "margin_given_others": self.margin_given_others.as_dict()["lower"],
+            "margin_given_others": float_down(self.margin_given_others.lower),
+            "limit_given_others": self.limit_given_others.as_dict(),
             "margin_given_others_bracket": self.margin_given_others.as_dict(),
             "acts_through": [{"power": p, "direction": d} for p, d in self.coefficients],
             "tolerance": self.tolerance,
@@ -63,105 +80,124 @@ class RankResult:
     parameters: tuple[ParameterRank, ...]
     robustly_stable: bool | None
     seconds: float
+    safety_stop: bool = False
 
     def as_dict(self) -> dict[str, object]:
-        """JSON per DESIGN.md section 5: parameters [{name, margin_alone, ...}]."""
+        """JSON per DESIGN.md section 5: parameters [{name, margin_alone, limit, ...}]."""
         return {"parameters": [p.as_dict() for p in self.parameters],
-                "robustly_stable": self.robustly_stable, "seconds": round(self.seconds, 3)}
+                "robustly_stable": self.robustly_stable, "safety_stop": self.safety_stop,
+                "seconds": round(self.seconds, 3)}
 
 
-def _alone(family: UncertainPolynomial, i: int, cap: Fraction) -> Bracket:
-    value, exact, decimal = path_margin(family, i, cap)
-    if exact is None:
-        return Bracket(cap, None, note=f"stable up to the cap {float(cap):g}")
+def _alone(family: UncertainPolynomial, i: int, cap: Fraction, tol: Fraction, max_boxes: int
+           ) -> tuple[Bracket, ScaleEnd]:
+    """Parameter ``i`` alone: exact, by the first crossing on the segment of its range."""
+    scaling = Scaling.one(family, i, others_full=False)
+    end = end_of_scaling(scaling, cap)
+    root = path_margin(family, i, end.scale)
+    if root is None or root.lower > end.scale:  # a crossing at the end itself is named
+        # no crossing before the end: stable on every box(rho), rho < end (exact), so the
+        # margin is the end itself (a supremum, not attained when the end is a limit)
+        upper = None if end.kind is LimitKind.CAP else end.scale
+        return Bracket(end.scale, upper, end.exact, note=""), end
     # the isolating interval's low end is proven by the exact crossing argument; a short
     # rational just above the crossing carries a verified witness
-    return Bracket(value, _beyond(family, i, value, cap), exact, decimal)
-
-
-def _beyond(family: UncertainPolynomial, i: int, value: Fraction, cap: Fraction) -> Fraction | None:
+    witness = None
+    upper = None
     for factor in (Fraction(1, 10**9), Fraction(1, 10**6), Fraction(1, 1000)):
-        rho = short_between(value * (1 + factor / 2), value * (1 + factor)) or value * (1 + factor)
-        if rho > cap:
-            return None
-        box = _only(family, i, rho, others_at_nominal=True)
-        res = decide(family, box, max_seconds=2, max_boxes=200)
-        if res.verdict == "unstable":
-            return rho
-    return None
+        rho = short_between(root.upper * (1 + factor / 2), root.upper * (1 + factor)) or root.upper * (1 + factor)
+        if rho >= end.scale:
+            break
+        res = decide(family, scaling.box(rho), max_seconds=600, max_boxes=max_boxes)
+        if res.verdict is Verdict.UNSTABLE:
+            upper, witness = rho, res.witness
+            break
+    bracket = Bracket(root.lower, upper if upper is not None else end.scale, root.text, root.decimal, witness)
+    value = Fraction(root.decimal)
+    value = value if root.lower <= value <= bracket.upper else root.lower
+    return bracket, ScaleEnd(LimitKind.CROSSING, (family.names[i],), value, root.upper, root.text)
 
 
-def _only(family: UncertainPolynomial, i: int, rho: Fraction, others_at_nominal: bool) -> Box:
-    low, high = list(family.box.low), list(family.box.high)
-    if others_at_nominal:
-        low = list(family.nominal)
-        high = list(family.nominal)
-    n = family.nominal[i]
-    low[i] = n - rho * (n - family.box.low[i])
-    high[i] = n + rho * (family.box.high[i] - n)
-    return Box(family.names, tuple(low), tuple(high))
+def _given_others(family: UncertainPolynomial, i: int, robust_ok: bool | None, cap: Fraction,
+                  tol: Fraction, work: Work, max_boxes: int) -> tuple[Bracket, ScaleEnd]:
+    """Bracket on the scale of one tolerance, the others over their full range."""
+    scaling = Scaling.one(family, i, others_full=True)
+    end = end_of_scaling(scaling, cap)
+
+    def test(rho: Fraction) -> tuple[Verdict, Witness | None]:
+        box = scaling.box(rho)
+        if untestable(family, box) is not None:  # the validity rule
+            return Verdict.UNDECIDED, None
+        res = decide(family, box, max_seconds=max(work.deadline - time.perf_counter(), 0.01),
+                     max_boxes=max_boxes)
+        work.clock_fired |= res.safety_stop
+        return res.verdict, res.witness
+
+    work.tests += 1
+    verdict0, w0 = test(Fraction(0))
+    if verdict0 is Verdict.UNSTABLE:
+        bracket = Bracket(Fraction(0), Fraction(0), witness=w0,
+                          note="unstable even with this parameter at nominal: tightening it alone does not help")
+        return bracket, crossing_end(family, bracket, value=Fraction(0))
+    if verdict0 is not Verdict.STABLE:
+        return (Bracket(Fraction(0), None, note="undecided with this parameter at nominal"),
+                replace(end, proven=False))
+    start = Fraction(1) if robust_ok is not False else Fraction(1, 2)
+    bracket = bisect_margin(test, end.scale, end.kind is LimitKind.CAP, tol, work, start=start)
+    if bracket.upper is not None:
+        return bracket, crossing_end(family, bracket)
+    top = end.scale if end.kind is LimitKind.CAP else just_below(end.scale, tol)
+    proven = bracket.lower >= top
+    return (replace(bracket, upper=None if end.kind is LimitKind.CAP else end.scale),
+            replace(end, proven=proven))
 
 
 def rank(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float = 1e-3,
-         max_seconds: float = 60.0, max_boxes: int = 3000) -> RankResult:
+         max_seconds: float = 600.0, max_boxes: int = 1000, max_tests: int = 24) -> RankResult:
     """Rank the parameters by how little tolerance growth they stand (most critical first).
+
+    Parameters
+    ----------
+    max_boxes, max_tests
+        The work budget per parameter: decisions of at most ``max_boxes`` boxes, at most
+        ``max_tests`` of them; ``max_seconds`` is only a safety stop, reported when it fires.
 
     Examples
     --------
     >>> import robust
-    >>> r = robust.rank(robust.load_case("cases/thermal_pi_affine.toml"), max_seconds=20)
+    >>> r = robust.rank(robust.load_case("cases/thermal_pi_affine.toml"))
     >>> sorted(p.name for p in r.parameters)
     ['C', 'G', 'Kd']
-    >>> r.parameters[0].margin_alone.lower <= r.parameters[-1].margin_alone.lower
-    True
     """
     started = time.perf_counter()
     family: UncertainPolynomial = getattr(case_or_family, "family", case_or_family)
     parameters = getattr(case_or_family, "parameters", None)
     cap = Fraction(cap) if not isinstance(cap, Fraction) else cap
+    tol = Fraction(rel_tol)
+    deadline = started + max_seconds
     graph = build_graph(family)
-    whole = decide(family, family.box, max_seconds=max_seconds / 4, max_boxes=max_boxes)
-    robust_ok = {"stable": True, "unstable": False}.get(whole.verdict)
-    free = [i for i, (a, b) in enumerate(family.box.intervals) if b > a]
-    per = max((max_seconds * 3 / 4) / max(len(free), 1), 1.0)
+    whole = decide(family, family.box, max_seconds=max_seconds, max_boxes=max_boxes * 4)
+    robust_ok = {Verdict.STABLE: True, Verdict.UNSTABLE: False}.get(whole.verdict)
+    clock = whole.safety_stop
     out = []
     for i, name in enumerate(family.names):
         acts = tuple(sorted(((node[1], graph.edges[("parameter", name), node]["direction"])
                              for node in graph.successors(("parameter", name))), reverse=True))
-        tol = next((p.tolerance for p in parameters if p.name == name), "") if parameters else ""
-        if i not in free:
+        tol_text = next((p.tolerance for p in parameters if p.name == name), "") if parameters else ""
+        if family.box.low[i] == family.box.high[i]:
             fixed = Bracket(cap, None, note="no tolerance")
-            out.append(ParameterRank(name, fixed, fixed, acts, tol, None, None))
+            end = ScaleEnd(LimitKind.CAP, (), cap, cap, None, "no tolerance")
+            out.append(ParameterRank(name, fixed, end, fixed, end, acts, tol_text, None, None))
             continue
-        alone = _alone(family, i, cap)
-        deadline = time.perf_counter() + per
-
-        def test(rho: Fraction, seconds: float, i=i) -> tuple[str, Witness | None]:
-            box = _only(family, i, rho, others_at_nominal=False)
-            if not family.valid_on(box):
-                return "undecided", None
-            res = decide(family, box, max_seconds=min(seconds, per), max_boxes=max_boxes)
-            return res.verdict, res.witness
-
-        given = _given_others(test, robust_ok, cap, rel_tol, deadline)
+        alone, alone_end = _alone(family, i, cap, tol, max_boxes)
+        work = Work(max_tests, deadline)
+        given, given_end = _given_others(family, i, robust_ok, cap, tol, work, max_boxes)
+        clock |= work.clock_fired
         tightened, restores = None, None
         if robust_ok is False:
-            restores = given.lower > 0 or (given.upper is None)
-            if given.lower == 0 and given.upper == 0:
-                restores = False
+            restores = True if given.lower > 0 else (False if given.upper == 0 else None)
             tightened = given.lower if restores else None
-        out.append(ParameterRank(name, alone, given, acts, tol, tightened, restores))
-    out.sort(key=lambda p: (p.margin_alone.lower, p.margin_given_others.lower))
-    return RankResult(tuple(out), robust_ok, time.perf_counter() - started)
-
-
-def _given_others(test, robust_ok: bool | None, cap: Fraction, rel_tol: float, deadline: float) -> Bracket:
-    """Bracket on the scale of one tolerance, the others over their full range."""
-    verdict0, w0 = test(Fraction(0), max(deadline - time.perf_counter(), 0.5))
-    if verdict0 == "unstable":
-        return Bracket(Fraction(0), Fraction(0), witness=w0,
-                       note="unstable even with this parameter at nominal: tightening it alone does not help")
-    if verdict0 != "stable":
-        return Bracket(Fraction(0), None, note="undecided with this parameter at nominal")
-    start = Fraction(1) if robust_ok is not False else Fraction(1, 2)
-    return bisect_margin(test, cap, rel_tol, deadline, start=start)
+        out.append(ParameterRank(name, alone, alone_end, given, given_end, acts, tol_text, tightened, restores))
+    # crossings first (the parts that matter for stability), then the parts that only reach a limit
+    out.sort(key=lambda p: (not p.crosses, p.margin_alone.lower, p.margin_given_others.lower, p.name))
+    return RankResult(tuple(out), robust_ok, time.perf_counter() - started, clock)

@@ -1,49 +1,94 @@
-"""The case's requirements, each decided directly over its own box."""
+"""The case's requirements, each decided directly over its own box, by one procedure that
+check, margin and the report all use (so that they give the same outcome)."""
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
 
-from ..model.family import UncertainPolynomial
-from .decay import shifted_family
+from ..exact.numbers import format_fraction
+from ..model.family import UncertainPolynomial, shifted_family
+from .outcomes import BoxProblem, Outcome, Verdict, box_problem, requirement_outcome
+from .scaling import Scaling
 from .verdict import Witness, decide
 
-__all__ = ["RequirementCheck", "check_requirements"]
+__all__ = ["DEFAULT_REQUIREMENT_BOXES", "RequirementCheck", "check_requirements", "decide_requirement"]
+
+#: The box budget of one requirement's direct decision, the same in every command.
+DEFAULT_REQUIREMENT_BOXES = 5000
+
+_WORDS = {"margin": "stable with every tolerance scaled by {v}",
+          "decay_rate": "every root has Re(s) < -{v}"}
 
 
 @dataclass(frozen=True, slots=True)
 class RequirementCheck:
-    """One requirement of the case, decided directly (not through a bracket)."""
+    """One requirement of the case, decided directly over its own box.
+
+    ``direct`` is the verdict over that box (None when the box does not stand for the loop:
+    ``problem`` says why); ``outcome`` is the one pass/fail rule applied to it.
+    """
 
     name: str  # "margin" | "decay_rate"
     required: Fraction
-    passed: bool | None
+    direct: Verdict | None
+    outcome: Outcome
     witness: Witness | None
+    problem: BoxProblem | None = None
+    safety_stop: bool = False
+
+    @property
+    def passed(self) -> bool | None:
+        """True, False or None (undecided)."""
+        return self.outcome.passed
+
+    @property
+    def wording(self) -> str:
+        """What the requirement asks, in words."""
+        return _WORDS[self.name].format(v=f"{float(self.required):g}")
 
     def as_dict(self) -> dict[str, object]:
         """JSON form."""
-        return {"required": float(self.required), "passed": self.passed,
-                "witness": self.witness.as_dict() if self.witness else None}
+        return {"required": float(self.required), "required_exact": format_fraction(self.required),
+                "outcome": self.outcome.value, "passed": self.passed,
+                "direct": None if self.direct is None else self.direct.value,
+                "witness": self.witness.as_dict() if self.witness else None,
+                "problem": None if self.problem is None else
+                {"kind": self.problem.kind.value, "parameters": list(self.problem.parameters),
+                 "proven": self.problem.proven, "detail": self.problem.detail},
+                "safety_stop": self.safety_stop}
 
 
-def check_requirements(case, max_seconds: float = 30.0, max_boxes: int = 5000) -> tuple[RequirementCheck, ...]:
-    """Decide the case's requirements: stable over box(margin), and every root left of
-    Re(s) = -decay_rate over the box."""
+def decide_requirement(family: UncertainPolynomial, name: str, required: Fraction,
+                       max_boxes: int = DEFAULT_REQUIREMENT_BOXES, max_seconds: float = 600.0
+                       ) -> RequirementCheck:
+    """Decide one requirement directly: stable over box(required) for ``"margin"`` (a box that
+    reaches a physical limit, a sign change of a divided-out factor or a degree loss fails
+    it), every root left of Re(s) = -required over the box for ``"decay_rate"``."""
+    if name == "margin":
+        box = Scaling.everything(family).box(required)
+        problem = box_problem(family, box)
+        if problem is not None:
+            return RequirementCheck(name, required, None,
+                                    Outcome.FAIL if problem.proven else Outcome.OPEN, None, problem)
+        res = decide(family, box, max_seconds=max_seconds, max_boxes=max_boxes)
+    elif name == "decay_rate":
+        res = decide(shifted_family(family, required) if required else family, family.box,
+                     max_seconds=max_seconds, max_boxes=max_boxes)
+    else:
+        raise ValueError(f"unknown requirement {name!r}")
+    return RequirementCheck(name, required, res.verdict, requirement_outcome(required, res.verdict),
+                            res.witness, None, res.safety_stop)
+
+
+def check_requirements(case, max_seconds: float = 600.0, max_boxes: int = DEFAULT_REQUIREMENT_BOXES
+                       ) -> tuple[RequirementCheck, ...]:
+    """Decide the case's requirements directly, in the order margin, decay rate."""
     family: UncertainPolynomial = case.family
     req = case.requirements
     out = []
-    if req.margin is not None:
-        box = family.box.scaled(family.nominal, req.margin)
-        if family.valid_on(box):
-            res = decide(family, box, max_seconds=max_seconds, max_boxes=max_boxes)
-            passed = {"stable": True, "unstable": False}.get(res.verdict)
-            out.append(RequirementCheck("margin", req.margin, passed, res.witness))
-        else:
-            out.append(RequirementCheck("margin", req.margin, None, None))
-    if req.decay_rate is not None:
-        shifted = shifted_family(family, req.decay_rate)
-        res = decide(shifted, family.box, max_seconds=max_seconds, max_boxes=max_boxes)
-        passed = {"stable": True, "unstable": False}.get(res.verdict)
-        out.append(RequirementCheck("decay_rate", req.decay_rate, passed, res.witness))
+    for name in ("margin", "decay_rate"):
+        value = getattr(req, name)
+        if value is not None:
+            out.append(decide_requirement(family, name, value, max_boxes, max_seconds))
     return tuple(out)

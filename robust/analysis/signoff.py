@@ -13,26 +13,19 @@ from .margin import MarginResult, margin
 from .requirements import RequirementCheck, check_requirements
 from .montecarlo import YieldResult, estimate_yield
 from .rank import RankResult, rank
-from .verdict import CheckResult, check
+from .outcomes import Verdict
+from .verdict import DEFAULT_MAX_BOXES, CheckResult, check
 
 __all__ = ["Analysis", "Settings", "analyse"]
 
-#: Shares of the budget. The check has its own share; the requirements (decided only for
-#: a stable design) take a part of what is left; margin and rank share the rest, rank
-#: taking whatever margin leaves over.
-_CHECK_SHARE = 0.3
-_REQUIREMENTS_SHARE = 0.2
-_MARGIN_SHARE = 0.5
-_MIN_STAGE_SECONDS = 1.0
-
-
 @dataclass(frozen=True, slots=True)
 class Settings:
-    """The budget and random seed a report was made with (for re-running it)."""
+    """The work budget, safety stop and random seed a report was made with (for re-running it)."""
 
     max_seconds: float
     yield_draws: int
     seed: int
+    max_boxes: int = DEFAULT_MAX_BOXES
 
 
 @dataclass(frozen=True, slots=True)
@@ -51,21 +44,29 @@ class Analysis:
     yield_result: YieldResult
     started: str
     version: str
-    settings: Settings = Settings(60.0, 20000, 0)
+    settings: Settings = Settings(600.0, 20000, 0)
+
+    @property
+    def safety_stop(self) -> bool:
+        """Whether the wall-clock safety limit cut any stage short (results may then differ
+        from a re-run on another machine)."""
+        return (self.check.safety_stop or self.margin.safety_stop or self.rank.safety_stop
+                or any(r.safety_stop for r in self.requirements))
 
 
-def analyse(case: Case, *, max_seconds: float = 60.0, yield_draws: int = 20000, seed: int = 0,
+def analyse(case: Case, *, max_seconds: float = 600.0, max_boxes: int = DEFAULT_MAX_BOXES,
+            yield_draws: int = 20000, seed: int = 0,
             progress: Callable[[str], None] | None = None) -> Analysis:
     """Run check, requirements, margin, rank and Monte Carlo yield on ``case``.
 
     Parameters
     ----------
+    max_boxes
+        The check's box budget; the margin, decay-rate and ranking searches use their own
+        fixed work budgets (decisions counted), so a report is the same on any machine.
     max_seconds
-        Time budget for the exact analyses, split as: the check up to 30 %; the
-        requirements (stable designs only) up to 20 % of what is left; the margin half of
-        the remainder and the ranking the rest. Each stage gets at least one second, so a
-        tiny budget may be overrun a little. The yield is not budgeted: it takes
-        ``yield_draws`` draws.
+        A wall-clock safety stop for the whole analysis; when it fires, the stage it cut
+        says so (``safety_stop``) and the report shows it.
     yield_draws, seed
         Monte Carlo draws and their seed.
     progress
@@ -79,26 +80,21 @@ def analyse(case: Case, *, max_seconds: float = 60.0, yield_draws: int = 20000, 
     started = datetime.now().astimezone().isoformat(timespec="seconds")
     deadline = time.perf_counter() + max_seconds
 
-    def left(share: float) -> float:
-        return max((deadline - time.perf_counter()) * share, _MIN_STAGE_SECONDS)
+    def left() -> float:
+        return max(deadline - time.perf_counter(), 0.01)
 
-    seconds = max(max_seconds * _CHECK_SHARE, _MIN_STAGE_SECONDS)
-    say(f"check: deciding robust stability (budget {seconds:.0f} s)")
-    verdict = check(case, max_seconds=seconds, seed=seed)
+    say(f"check: deciding robust stability (budget {max_boxes} boxes)")
+    verdict = check(case, max_seconds=left(), max_boxes=max_boxes, seed=seed)
     requirements: tuple[RequirementCheck, ...] = ()
-    if verdict.verdict == "stable" and (case.requirements.margin is not None
-                                        or case.requirements.decay_rate is not None):
-        seconds = left(_REQUIREMENTS_SHARE)
-        say(f"requirements: deciding them directly (budget {seconds:.0f} s)")
-        # check_requirements decides each requirement in turn, each with this budget
-        requirements = check_requirements(case, max_seconds=seconds / 2)
-    seconds = left(_MARGIN_SHARE)
-    say(f"margin: robust margin and decay rate (budget {seconds:.0f} s)")
-    margins = margin(case, max_seconds=seconds)
-    seconds = left(1.0)
-    say(f"rank: per-parameter margins (budget {seconds:.0f} s)")
-    ranking = rank(case, max_seconds=seconds)
+    if verdict.verdict == Verdict.STABLE and (case.requirements.margin is not None
+                                              or case.requirements.decay_rate is not None):
+        say("requirements: deciding them directly")
+        requirements = check_requirements(case, max_seconds=left())
+    say("margin: robust margin and decay rate")
+    margins = margin(case, max_seconds=left())
+    say("rank: per-parameter margins")
+    ranking = rank(case, max_seconds=left())
     say(f"yield: {yield_draws} random builds (seed {seed})")
     builds = estimate_yield(case, yield_draws, seed)
     return Analysis(case, verdict, margins, requirements, ranking, builds, started, __version__,
-                    Settings(float(max_seconds), int(yield_draws), int(seed)))
+                    Settings(float(max_seconds), int(yield_draws), int(seed), int(max_boxes)))

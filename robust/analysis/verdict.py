@@ -36,6 +36,7 @@ from ..model.family import Box, UncertainPolynomial
 from ..exact.interval import IntervalPolynomial, KharitonovResult, KharitonovVertex, kharitonov_test
 from ..exact.polynomials import Bound, as_intervals
 from ..exact.routh import RootCounts, is_hurwitz, routh_table
+from .outcomes import Verdict
 from .search import batch_worst_angle, search_witness
 
 __all__ = [
@@ -47,7 +48,7 @@ __all__ = [
     "decide",
 ]
 
-DEFAULT_MAX_SECONDS = 60.0
+DEFAULT_MAX_SECONDS = 600.0  # a safety stop only: the work budget is DEFAULT_MAX_BOXES
 DEFAULT_MAX_BOXES = 20_000
 
 METHOD_TEXT = {
@@ -104,9 +105,9 @@ class CheckResult:
     Attributes
     ----------
     verdict
-        ``"stable"`` (proven for every point of the box), ``"unstable"`` (``witness`` given)
-        or ``"undecided"`` (budget exhausted; ``unresolved`` and ``largest_unproven`` say what
-        is left).
+        :class:`~robust.analysis.outcomes.Verdict`: stable (proven for every point of the
+        box), unstable (``witness`` given) or undecided (budget exhausted; ``unresolved`` and
+        ``largest_unproven`` say what is left).
     method
         Short id of the deciding step (see ``METHOD_TEXT``).
     nominal
@@ -115,7 +116,7 @@ class CheckResult:
         Fraction of the box volume not proven stable (0 when decided).
     """
 
-    verdict: str
+    verdict: Verdict
     method: str
     kind: str
     nominal: RootCounts
@@ -131,6 +132,9 @@ class CheckResult:
     box: Box
     max_depth: int = 0
     vertex_tables: tuple[KharitonovVertex, ...] = field(default=())
+    #: True when the wall-clock safety limit stopped the work before its budget: the only
+    #: case in which the same input may give another result.
+    safety_stop: bool = False
 
     @property
     def method_text(self) -> str:
@@ -140,7 +144,7 @@ class CheckResult:
     def as_dict(self) -> dict[str, object]:
         """JSON form: verdict, method, nominal, witness, unresolved (DESIGN.md section 5)."""
         return {
-            "verdict": self.verdict,
+            "verdict": self.verdict.value,
             "method": self.method,
             "method_text": self.method_text,
             "family_class": self.kind,
@@ -154,6 +158,7 @@ class CheckResult:
             "proven_boxes": self.proven_boxes,
             "edges": self.edges,
             "max_depth": self.max_depth,
+            "safety_stop": self.safety_stop,
             "seconds": round(self.seconds, 4),
             "box": self.box.as_dict(),
         }
@@ -161,16 +166,23 @@ class CheckResult:
 
 @dataclass
 class _Budget:
+    """Work counted in boxes and edges (reproducible); the clock is only a safety stop."""
+
     max_seconds: float
     max_boxes: int
     start: float = field(default_factory=time.perf_counter)
     boxes: int = 0
+    clock_fired: bool = False
 
     def elapsed(self) -> float:
         return time.perf_counter() - self.start
 
     def exhausted(self) -> bool:
-        return self.boxes >= self.max_boxes or self.elapsed() >= self.max_seconds
+        if self.boxes >= self.max_boxes:
+            return True
+        if self.elapsed() >= self.max_seconds:
+            self.clock_fired = True
+        return self.clock_fired
 
 
 def _interval(family: UncertainPolynomial, box: Box) -> IntervalPolynomial:
@@ -182,7 +194,7 @@ def _interval_of(bounds: Sequence[Bound]) -> IntervalPolynomial:
     return IntervalPolynomial(tuple(b.low for b in bounds), tuple(b.high for b in bounds))
 
 
-def _make_witness(family: UncertainPolynomial, point: Sequence[Fraction], found_by: str,
+def make_witness(family: UncertainPolynomial, point: Sequence[Fraction], found_by: str,
                   box: Box) -> Witness | None:
     """A verified witness, or None when the point is stable or outside the box."""
     point = tuple(point)
@@ -231,16 +243,16 @@ def _realise_failure(family: UncertainPolynomial, box: Box, kh: KharitonovResult
     if kh.reason == "degree":
         lead_positive = family.coefficients[0].evaluate(_inside(family, box)) > 0
         point = _realise_ends(family, box, [(0, not lead_positive)])
-        return _make_witness(family, point, "leading coefficient changes sign", box) if point else None
+        return make_witness(family, point, "leading coefficient changes sign", box) if point else None
     if kh.reason == "sign" and kh.failing_coefficient is not None:
         k = kh.failing_coefficient
         point = _realise_ends(family, box, [(k, flip)])
-        return _make_witness(family, point, f"coefficient of s^{n - k} at its bound", box) if point else None
+        return make_witness(family, point, f"coefficient of s^{n - k} at its bound", box) if point else None
     for label in kh.failing:
         pattern = fam.pattern(label)
         point = _realise_ends(family, box, [(k, w == "high") for k, w in enumerate(pattern)])
         if point is not None:
-            w = _make_witness(family, point, f"Kharitonov vertex {label} realised", box)
+            w = make_witness(family, point, f"Kharitonov vertex {label} realised", box)
             if w is not None:
                 return w
     return None
@@ -320,11 +332,14 @@ def decide(
     def result(verdict: str, method: str, witness: Witness | None = None, unresolved=Fraction(0),
                largest: Box | None = None, reason: str = "", proven: int = 0, edges: int = 0,
                depth: int = 0) -> CheckResult:
-        return CheckResult(verdict, method, kind, nominal_roots, witness, unresolved, largest,
-                           budget.boxes, proven, edges, budget.elapsed(), kh, reason, box, depth)
+        if budget.clock_fired and verdict == Verdict.UNDECIDED:
+            reason += "; stopped by the wall-clock safety limit before the work budget was used"
+        return CheckResult(Verdict(verdict), method, kind, nominal_roots, witness, unresolved, largest,
+                           budget.boxes, proven, edges, budget.elapsed(), kh, reason, box, depth,
+                           safety_stop=budget.clock_fired)
 
     if nominal_table is None or not nominal_table.is_hurwitz:
-        w = _make_witness(family, start_point, "nominal point", box)
+        w = make_witness(family, start_point, "nominal point", box)
         if w is not None:
             return result("unstable", "nominal", w, reason="the nominal design is not stable")
         return result("undecided", "nominal", unresolved=Fraction(1), largest=box,
@@ -339,10 +354,9 @@ def decide(
         method = "kharitonov-vertex" if kh.reason == "vertex" else "coefficient-sign"
         return result("unstable", method, w, reason=f"{w.found_by}: not Hurwitz")
     if search:
-        found = search_witness(family, box, seed=seed, max_corners=64,
-                               deadline=budget.start + max_seconds * 0.25)
+        found = search_witness(family, box, seed=seed, max_corners=64)
         if found is not None:
-            w = _make_witness(family, found[0], found[1], box)
+            w = make_witness(family, found[0], found[1], box)
             if w is not None:
                 return result("unstable", "search", w, reason=f"{w.found_by}: not Hurwitz")
     if kh.reason == "degree":
@@ -383,7 +397,7 @@ def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
         corners.append(tuple(point))
     coeffs = [family.coefficients_at(p) for p in corners]
     for i, (a, b) in enumerate(box_edges(len(corners), free)):
-        if budget.elapsed() > budget.max_seconds:
+        if budget.exhausted():
             return None
         budget.boxes += 1
         seg = check_segment(coeffs[a], coeffs[b])
@@ -395,7 +409,7 @@ def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
                     "(marginal family); no rational witness exists there")
         lam = seg.witness_l
         point = tuple((1 - lam) * x + lam * y for x, y in zip(corners[a], corners[b], strict=True))
-        w = _make_witness(family, point, f"point on a box edge ({seg.crossing} crossing)", box)
+        w = make_witness(family, point, f"point on a box edge ({seg.crossing} crossing)", box)
         if w is not None:
             return ("unstable", w, i + 1, "")
     return ("stable", None, count, "")
@@ -430,15 +444,14 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
             center = sub.center
             w = None
             if worst_root_angle_many(family, [center])[0] > -1e-6:
-                w = _make_witness(family, center, "centre of a sub-box", box)
+                w = make_witness(family, center, "centre of a sub-box", box)
             if w is None and kh.reason in ("sign", "degree", "vertex"):
                 w = _realise_failure(family, sub, kh)
             if w is None and depth >= 4 and depth % 4 == 0 and depth not in searched_depths:
                 searched_depths.add(depth)
-                found = search_witness(family, sub, seed=seed + depth, samples=64, local=2,
-                                       deadline=time.perf_counter() + 0.5)
+                found = search_witness(family, sub, seed=seed + depth, samples=64, local=2)
                 if found is not None:
-                    w = _make_witness(family, found[0], found[1] + " (sub-box)", box)
+                    w = make_witness(family, found[0], found[1] + " (sub-box)", box)
             if w is not None:
                 return result("unstable", "subdivision", w, reason=f"{w.found_by}: not Hurwitz",
                               proven=proven, depth=max_depth)
@@ -461,7 +474,7 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
     largest = top[int(np.argmax(scores))][2]
     return result("undecided", "subdivision", unresolved=unresolved, largest=largest,
                   proven=proven, depth=max_depth,
-                  reason=f"budget exhausted after {budget.boxes} boxes and {budget.elapsed():.1f} s; "
+                  reason=f"budget exhausted after {budget.boxes} boxes; "
                   f"{float(unresolved):.3%} of the box volume is unproven")
 
 

@@ -41,6 +41,11 @@ class Parameter:
     note: str = ""
     distribution: str = "uniform"
     tolerance: str = ""  # as written, for reports ("1%", "+-0.5", "range")
+    #: Physical limits (exclusive): the part can approach them but never reach them; None is
+    #: no limit on that side. Default: (0, inf) for a positive range, (-inf, 0) for a
+    #: negative one, none for a range that includes 0.
+    limits: tuple[Fraction | None, Fraction | None] = (None, None)
+    limits_text: str = ""  # "given" or "default", for reports
 
     @property
     def relative_tolerance(self) -> Fraction | None:
@@ -174,7 +179,7 @@ def _parameter(reader: _Reader, name: str, table: object) -> Parameter:
     if not isinstance(table, dict):
         raise reader.error(section, None, "a parameter must be a table",
                            "[parameters.NAME] with nominal and tolerance (or range)", table)
-    allowed = {"nominal", "tolerance", "range", "unit", "note", "distribution"}
+    allowed = {"nominal", "tolerance", "range", "unit", "note", "distribution", "limits"}
     for key in table:
         if key not in allowed:
             raise reader.error(section, key, "unknown key", ", ".join(sorted(allowed)))
@@ -211,8 +216,46 @@ def _parameter(reader: _Reader, name: str, table: object) -> Parameter:
     for key in ("unit", "note"):
         if key in table and not isinstance(table[key], str):
             raise reader.error(section, key, "must be text", "a string", table[key])
+    limits, limits_text = _limits(reader, section, table.get("limits"), low, high)
     return Parameter(name, nominal, low, high, table.get("unit", ""), table.get("note", ""),
-                     distribution, tol_text)
+                     distribution, tol_text, limits, limits_text)
+
+
+def default_limits(low: Fraction, high: Fraction) -> tuple[Fraction | None, Fraction | None]:
+    """(0, inf) for a strictly positive range, (-inf, 0) for a strictly negative one, else none."""
+    if low > 0:
+        return Fraction(0), None
+    if high < 0:
+        return None, Fraction(0)
+    return None, None
+
+
+def _limits(reader: _Reader, section: str, value: object, low: Fraction, high: Fraction
+            ) -> tuple[tuple[Fraction | None, Fraction | None], str]:
+    """The physical limits as given (or by default), checked to lie strictly outside the range."""
+    expected = '[low, high] with numbers or "-inf" / "inf", e.g. [0, "inf"]'
+    if value is None:
+        return default_limits(low, high), "default"
+    if not isinstance(value, list) or len(value) != 2:
+        raise reader.error(section, "limits", "limits are two numbers", expected, value)
+    ends: list[Fraction | None] = []
+    for end, infinite in zip(value, ("-inf", "inf"), strict=True):
+        if isinstance(end, str) and end.strip() in (infinite, "+" + infinite if infinite == "inf" else infinite):
+            ends.append(None)
+        elif isinstance(end, float) and end in (float("inf"), float("-inf")):
+            if (end < 0) != (infinite == "-inf"):
+                raise reader.error(section, "limits", "an infinite limit on the wrong side", expected, value)
+            ends.append(None)
+        else:
+            ends.append(_number(reader, section, "limits", end))
+    lo, hi = ends
+    if lo is not None and hi is not None and lo >= hi:
+        raise reader.error(section, "limits", "the limits are reversed or equal", "low < high", value)
+    if (lo is not None and low <= lo) or (hi is not None and high >= hi):
+        raise reader.error(section, "limits", "the parameter's range reaches its limits",
+                           f"limits strictly outside the range [{float(low):g}, {float(high):g}] "
+                           "(a limit is a value the part can approach but never reach)", value)
+    return (lo, hi), "given"
 
 
 def _formula(reader: _Reader, section: str, key: str, text: object, names, variable,
@@ -336,7 +379,8 @@ def parse_case(text: str, path: str = "<case>") -> Case:
     box = Box(names, tuple(p.low for p in parameters), tuple(p.high for p in parameters))
     nominal = tuple(p.nominal for p in parameters)
     try:
-        family = build_family(numerator, denominator, s, names, box, nominal)
+        family = build_family(numerator, denominator, s, names, box, nominal,
+                              limits=tuple(p.limits for p in parameters))
     except InputError as error:
         raise reader.error("polynomial", form, error.problem, error.expected) from None
     requirements = _requirements(reader, data.get("requirements", {}))

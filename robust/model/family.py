@@ -8,6 +8,8 @@ multiplies out without moving any root; one that may vanish is an error.
 
 from __future__ import annotations
 
+import dataclasses
+import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
@@ -18,7 +20,7 @@ import sympy as sp
 from ..errors import InputError
 from ..exact.polynomials import Bound, MultiPoly, as_intervals
 
-__all__ = ["Box", "UncertainPolynomial", "build_family", "classify"]
+__all__ = ["Box", "UncertainPolynomial", "build_family", "classify", "shifted_family", "sign_over_box"]
 
 #: The dependence classes, from the most to the least structured.
 KINDS = ("independent", "affine", "multilinear", "polynomial")
@@ -125,8 +127,24 @@ class UncertainPolynomial:
     rational: bool = False
     cleared: str = ""
     factors: tuple[MultiPoly, ...] = ()
-    _float_form: list = field(default_factory=list, repr=False, compare=False)
-    _derivatives: tuple[tuple[MultiPoly, ...], ...] = field(default=(), repr=False, compare=False)
+    #: Physical limits per parameter, exclusive; None is no limit on that side.
+    limits: tuple[tuple[Fraction | None, Fraction | None], ...] = ()
+    # derived from ``coefficients`` in __post_init__ (not init fields, so that
+    # dataclasses.replace recomputes them rather than carrying them over stale)
+    _derivatives: tuple[tuple[MultiPoly, ...], ...] = field(init=False, repr=False, compare=False)
+    _float_form: tuple[np.ndarray, np.ndarray] = field(init=False, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "_derivatives", tuple(
+            tuple(c.derivative(i) for i in range(len(self.names))) for c in self.coefficients))
+        exps = sorted({e for c in self.coefficients for e, _ in c.terms})
+        index = {e: j for j, e in enumerate(exps)}
+        weights = np.zeros((len(self.coefficients), len(exps)))
+        for k, c in enumerate(self.coefficients):
+            for e, v in c.terms:
+                weights[k, index[e]] = float(v)
+        object.__setattr__(self, "_float_form",
+                           (np.array(exps, dtype=float).reshape(len(exps), -1), weights))
 
     @property
     def degree(self) -> int:
@@ -149,27 +167,23 @@ class UncertainPolynomial:
 
     def derivatives(self) -> tuple[tuple[MultiPoly, ...], ...]:
         """Partial derivatives: ``[k][i]`` is d a_(n-k) / d p_i."""
-        if self._derivatives:
-            return self._derivatives
-        return tuple(tuple(c.derivative(i) for i in range(len(self.names)))
-                     for c in self.coefficients)
+        return self._derivatives
 
     def with_box(self, box: Box) -> UncertainPolynomial:
-        """The same polynomial over another box (derivatives kept)."""
-        return UncertainPolynomial(self.names, self.coefficients, box, self.nominal,
-                                   self.rational, self.cleared, self.factors,
-                                   _float_form=self._float_form, _derivatives=self.derivatives())
+        """The same polynomial over another box."""
+        return dataclasses.replace(self, box=box)
 
     def with_coefficients(self, coefficients: Sequence[MultiPoly]) -> UncertainPolynomial:
         """Another polynomial over the same parameters and box (e.g. a shifted one)."""
-        fresh = UncertainPolynomial(self.names, tuple(coefficients), self.box, self.nominal,
-                                    self.rational, self.cleared, self.factors)
-        return fresh.with_box(self.box)
+        return dataclasses.replace(self, coefficients=tuple(coefficients))
 
-    def valid_on(self, box: Box) -> bool:
-        """Whether every cleared denominator and common factor keeps one sign over ``box``
-        (outside such a box the cleared polynomial no longer stands for the loop)."""
-        return all(_sign_over_box(f, box) != 0 for f in self.factors)
+    def limit_of(self, i: int) -> tuple[Fraction | None, Fraction | None]:
+        """The physical limits of parameter ``i`` (exclusive; None: none on that side)."""
+        return self.limits[i] if self.limits else (None, None)
+
+    def factor_signs(self, box: Box) -> tuple[int | None, ...]:
+        """Per cleared denominator or common factor, its sign over ``box``: see :func:`sign_over_box`."""
+        return tuple(sign_over_box(f, box) for f in self.factors)
 
     def bounds(self, box: Box | None = None) -> tuple[Bound, ...]:
         """Range of each coefficient over the box (exact where monotone/multilinear, else outer)."""
@@ -194,14 +208,6 @@ class UncertainPolynomial:
 
     def coefficients_float(self, points: np.ndarray) -> np.ndarray:
         """Float coefficients a_n .. a_0 at many points (rows): screening only, never verdicts."""
-        if not self._float_form:
-            exps = sorted({e for c in self.coefficients for e, _ in c.terms})
-            index = {e: j for j, e in enumerate(exps)}
-            weights = np.zeros((len(self.coefficients), len(exps)))
-            for k, c in enumerate(self.coefficients):
-                for e, v in c.terms:
-                    weights[k, index[e]] = float(v)
-            self._float_form.extend([np.array(exps, dtype=float).reshape(len(exps), -1), weights])
         exps, weights = self._float_form
         points = np.asarray(points, dtype=float)
         if exps.shape[1] == 0:
@@ -262,20 +268,28 @@ def _to_multipoly(expr: sp.Expr, symbols: Sequence[sp.Symbol]) -> MultiPoly:
     return MultiPoly.from_mapping(len(symbols), mapping)
 
 
-def _sign_over_box(poly: MultiPoly, box: Box, depth: int = 0) -> int:
-    """+1 or -1 when ``poly`` keeps that strict sign on the box, 0 when it may vanish."""
+def sign_over_box(poly: MultiPoly, box: Box, depth: int = 0) -> int | None:
+    """The sign of ``poly`` over the closed box, soundly.
+
+    +1 or -1: it keeps that strict sign (proven by exact bounds); 0: it vanishes somewhere
+    in the box (an exact bound reaches 0, or two sub-boxes have opposite strict signs, and
+    the box is connected); None: not decided by the bisection (depth 8).
+    """
     (lo, hi), exact = poly.bound(as_intervals(box.intervals))
     if lo > 0:
         return 1
     if hi < 0:
         return -1
-    if exact or depth >= 8:
+    if exact:
         return 0
+    if depth >= 8:
+        return None
     widths = box.widths()
     i = max(range(len(widths)), key=lambda k: widths[k])
-    halves = box.split(i)
-    signs = {_sign_over_box(poly, h, depth + 1) for h in halves}
-    return signs.pop() if len(signs) == 1 else 0
+    signs = {sign_over_box(poly, h, depth + 1) for h in box.split(i)}
+    if 0 in signs or signs == {1, -1}:
+        return 0
+    return signs.pop() if len(signs) == 1 else None
 
 
 def build_family(
@@ -286,6 +300,7 @@ def build_family(
     box: Box,
     nominal: Sequence[Fraction],
     where: str = "polynomial",
+    limits: Sequence[tuple[Fraction | None, Fraction | None]] = (),
 ) -> UncertainPolynomial:
     """Make the family from a characteristic polynomial numerator/denominator (sympy).
 
@@ -321,7 +336,7 @@ def build_family(
     for factor in cleared:
         mp = _to_multipoly(sp.expand(factor), symbols)
         factor_polys.append(mp)
-        if _sign_over_box(mp, box) == 0:
+        if sign_over_box(mp, box) in (0, None):
             raise InputError(
                 where,
                 f"the factor {sp.sstr(factor)} may vanish inside the parameter box",
@@ -339,10 +354,26 @@ def build_family(
         rational=rational,
         cleared=" * ".join(sp.sstr(f) for f in cleared),
         factors=tuple(factor_polys),
-    ).with_box(box)
+        limits=tuple(limits),
+    )
 
 
 def box_from(names: Sequence[str], ranges: Mapping[str, tuple[Fraction, Fraction]]) -> Box:
     """A Box from name -> (low, high)."""
     return Box(tuple(names), tuple(ranges[n][0] for n in names),
                tuple(ranges[n][1] for n in names))
+
+
+def shifted_family(family: UncertainPolynomial, sigma: Fraction) -> UncertainPolynomial:
+    """The family p(s - sigma): Hurwitz exactly when every root has Re(s) < -sigma."""
+    n = family.degree
+    k_vars = len(family.names)
+    # p(s - sigma) = sum_k a_k (s - sigma)^k, a_k = coefficients[n - k]
+    new = []
+    for j in range(n, -1, -1):  # power j, highest first
+        weights, polys = [], []
+        for k in range(j, n + 1):
+            weights.append(Fraction(math.comb(k, j)) * (-sigma) ** (k - j))
+            polys.append(family.coefficients[n - k])
+        new.append(MultiPoly.linear_combination(k_vars, polys, weights))
+    return family.with_coefficients(new)

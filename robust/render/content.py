@@ -10,6 +10,7 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Any
 
+from ..analysis.outcomes import Outcome, Verdict
 from ..model.graph import build_graph
 from ..analysis.signoff import Analysis
 from .blocks import (
@@ -27,8 +28,9 @@ from .blocks import (
 )
 from .certificate import certificate_section, undecided_blocks, witness_section
 from .fmt import bound_text, short
+from .text import margin_reading
 
-__all__ = ["CAUTIONS", "JOB_LINE", "build_document", "outcome"]
+__all__ = ["CAUTIONS", "JOB_LINE", "build_document", "outcome", "rerun_command"]
 
 JOB_LINE = ("robust proves, in exact arithmetic, that a feedback loop's characteristic polynomial is "
             "stable for every combination of parameter values inside their tolerances, or refutes it "
@@ -43,11 +45,6 @@ CAUTIONS = (
     "This report supports that review; it does not replace it.",
 )
 
-_HEADLINE = {
-    "stable": "STABLE for every parameter set inside the tolerances (proven)",
-    "unstable": "NOT ROBUSTLY STABLE: a verified counterexample lies inside the tolerances",
-    "undecided": "UNDECIDED within the time budget",
-}
 
 _KIND_TEXT = {
     "independent": "each parameter enters one coefficient only, so the interval "
@@ -62,41 +59,40 @@ _KIND_TEXT = {
                 "overbound is sound but may be conservative (box subdivision refines it)",
 }
 
-_PASS = {True: ("PASS", "pass"), False: ("FAIL", "fail"), None: ("UNDECIDED", "open")}
+def _badge(outcome: Outcome, key: str = "") -> Badge:
+    return Badge(outcome.word, outcome.value, key, outcome.passed)
 
 
-def _badge(passed: bool | None, key: str = "") -> Badge:
-    text, kind = _PASS[passed]
-    return Badge(text, kind, key, passed)
-
-
-def _requirement_results(analysis: Analysis) -> list[tuple[str, Fraction, bool | None, bool | None]]:
-    """(name, required, from the bracket, decided directly) per requirement of the case."""
+def _requirement_results(analysis: Analysis) -> list[tuple[str, Fraction, Outcome]]:
+    """(name, required, outcome) per requirement of the case: the outcomes of the margin
+    search, which applies the one pass/fail rule to the direct decision and the bracket."""
     req = analysis.case.requirements
-    direct = {r.name: r.passed for r in analysis.requirements}
     out = []
-    if req.margin is not None:
-        out.append(("margin", req.margin, analysis.margin.passed, direct.get("margin")))
-    if req.decay_rate is not None:
-        decay = analysis.margin.decay
-        out.append(("decay_rate", req.decay_rate, decay.passed if decay else None, direct.get("decay_rate")))
+    if req.margin is not None and analysis.margin.outcome is not None:
+        out.append(("margin", req.margin, analysis.margin.outcome))
+    decay = analysis.margin.decay
+    if req.decay_rate is not None and decay is not None and decay.outcome is not None:
+        out.append(("decay_rate", req.decay_rate, decay.outcome))
     return out
 
 
-def _combined(bracket: bool | None, direct: bool | None) -> bool | None:
-    return direct if direct is not None else bracket
+def rerun_command(analysis: Analysis, case_path: str | None = None) -> str:
+    """The exact command that reproduces a report (same work budget, draws and seed)."""
+    s = analysis.settings
+    return (f"robust report {case_path or analysis.case.path} -o DIR --max-boxes {s.max_boxes} "
+            f"--max-seconds {s.max_seconds:g} --draws {s.yield_draws} --seed {s.seed}")
 
 
 def outcome(analysis: Analysis) -> tuple[str, str]:
     """The sign-off outcome: ("pass" | "fail" | "open", one sentence)."""
     verdict = analysis.check.verdict
-    if verdict == "unstable":
+    if verdict == Verdict.UNSTABLE:
         return "fail", "The design FAILS: it is not stable over the whole tolerance box."
-    if verdict == "undecided":
+    if verdict == Verdict.UNDECIDED:
         return "open", "No sign-off: robust stability could not be decided within the budget."
-    results = [(name, _combined(b, d)) for name, _, b, d in _requirement_results(analysis)]
-    failed = [name for name, passed in results if passed is False]
-    open_ = [name for name, passed in results if passed is None]
+    results = [(name, result) for name, _, result in _requirement_results(analysis)]
+    failed = [name for name, result in results if result is Outcome.FAIL]
+    open_ = [name for name, result in results if result is Outcome.OPEN]
     if failed:
         return "fail", ("The design is robustly stable but FAILS its requirement(s): "
                         + ", ".join(failed) + ".")
@@ -170,9 +166,9 @@ def _polynomial(analysis: Analysis) -> Section:
 
 def _verdict(analysis: Analysis) -> Section:
     case, result = analysis.case, analysis.check
-    passed = {"stable": True, "unstable": False}.get(result.verdict)
     blocks: list = [
-        Paragraph((Badge(_HEADLINE[result.verdict], _PASS[passed][1], "check.verdict", result.verdict),),
+        Paragraph((Badge(result.verdict.headline, result.verdict.outcome.value, "check.verdict",
+                         result.verdict.value),),
                   "outcome"),
         Paragraph(("Method: " + result.method_text + ".",)),
         Paragraph(("Why: " + result.reason + ".",)),
@@ -205,7 +201,7 @@ def _bracket_parts(bracket, json_bracket: dict, key: str) -> tuple:
 def _margins(analysis: Analysis) -> Section:
     m = analysis.margin
     data: dict[str, Any] = m.as_dict()
-    requirements = {name: (required, b, d) for name, required, b, d in _requirement_results(analysis)}
+    requirements = {name: (required, result) for name, required, result in _requirement_results(analysis)}
     rows = []
 
     def row(label: str, bracket, json_bracket: dict, key: str, name: str) -> tuple:
@@ -213,9 +209,9 @@ def _margins(analysis: Analysis) -> Section:
         if exact and bracket.decimal:
             exact = f"{exact} = {bracket.decimal}" if len(exact) <= 60 else f"≈ {bracket.decimal}"
         if name in requirements:
-            required, from_bracket, direct = requirements[name]
+            required, result = requirements[name]
             asked = Cell((f"≥ {short(float(required))}",), numeric=True)
-            verdict = Cell((_badge(_combined(from_bracket, direct)),))
+            verdict = Cell((_badge(result),))
         else:
             asked, verdict = Cell(("none",)), Cell(("-",))
         return (Cell((label,)), Cell(_bracket_parts(bracket, json_bracket, key), numeric=True),
@@ -229,17 +225,12 @@ def _margins(analysis: Analysis) -> Section:
     blocks: list = [Table(("quantity", "certified bracket", "exact value", "requirement", "outcome"),
                           tuple(rows)),
                     Paragraph(("A certified bracket [lower, upper]: the family is proven stable at the "
-                               "lower end and a verified witness lies at the upper end. Shown values are "
-                               "rounded outwards.",), "note")]
-    low = m.margin.lower
-    if m.margin.upper is None:
-        text = f"Stable with every tolerance scaled by at least {float(low):.6g}."
-    elif low >= 1:
-        text = f"Headroom: every tolerance can grow by {float(low - 1):.2%} and the loop stays stable."
-    else:
-        text = (f"The tolerances must shrink to {float(low):.2%} of their width about nominal "
-                "for the loop to be stable over the box.")
-    items: list = [(text,), (f"Method: {m.method}.",)]
+                               "lower end; the upper end holds a verified witness, or is the scale at "
+                               "which the scaled box stops standing for the hardware (a part at its "
+                               "physical limit, a lost order, a divided-out factor at zero). Shown values "
+                               "are rounded outwards.",), "note")]
+    items: list = [("What ends ρ*: " + m.limit.sentence() + ".",), (margin_reading(m.margin, m.limit),),
+                   (f"Method: {m.method}.",)]
     if m.margin.note:
         items.append((f"Margin note: {m.margin.note}.",))
     if m.decay is not None:
@@ -252,22 +243,26 @@ def _margins(analysis: Analysis) -> Section:
         pts = ", ".join(f"{n} = {float(v):.6g}" for n, v in m.margin.witness.parameters.items())
         items.append(("Witness just beyond the margin: " + pts + ".",))
     for r in analysis.requirements:
-        what = {"margin": f"stable over the box with every tolerance scaled by {float(r.required):g}",
-                "decay_rate": f"every root left of Re s = −{float(r.required):g} over the box"}[r.name]
-        items.append((f"Decided directly: {what}: ", _badge(r.passed)))
-    if not analysis.requirements and requirements and analysis.check.verdict != "stable":
+        items.append((f"Decided directly: {r.wording}: ", _badge(r.outcome))
+                     + ((f" ({r.problem.detail})",) if r.problem is not None else ()))
+    if analysis.safety_stop:
+        items.append(("The wall-clock safety limit cut a search short: a re-run on another machine "
+                      "may give other brackets.",))
+    if not analysis.requirements and requirements and analysis.check.verdict != Verdict.STABLE:
         items.append(("Requirements were not decided directly because the design is not robustly "
                       "stable; the outcome above comes from the brackets.",))
     blocks.append(ItemList(tuple(items)))
     return Section("Margins and requirements", tuple(blocks), anchor="margins")
 
 
-def _rank_bracket(bracket) -> str:
+def _rank_bracket(bracket, limit) -> str:
     if bracket.upper is None:
         return f"≥ {bound_text(bracket.lower, upward=False, digits=5)}"
     lo = bound_text(bracket.lower, upward=False, digits=5)
     hi = bound_text(bracket.upper, upward=True, digits=5)
-    return lo if lo == hi else f"{lo} … {hi}"
+    text = lo if lo == hi else f"{lo} … {hi}"
+    ends = {"physical_limit": " (limit)", "degree_loss": " (order lost)", "denominator": " (factor at 0)"}
+    return text + ends.get(limit.kind.value, "") + ("" if limit.proven else " ?")
 
 
 def _ranking(analysis: Analysis) -> Section:
@@ -277,8 +272,9 @@ def _ranking(analysis: Analysis) -> Section:
     for i, p in enumerate(r.parameters, start=1):
         acts = ", ".join(f"a{power} ({d})" for power, d in p.coefficients) or "-"
         cells = [Cell((str(i),), numeric=True), Cell((p.name,), mono=True), Cell((p.tolerance,)),
-                 Cell((_rank_bracket(p.margin_alone),), numeric=True),
-                 Cell((_rank_bracket(p.margin_given_others),), numeric=True), Cell((acts,))]
+                 Cell((_rank_bracket(p.margin_alone, p.limit_alone),), numeric=True),
+                 Cell((_rank_bracket(p.margin_given_others, p.limit_given_others),), numeric=True),
+                 Cell((acts,))]
         if failing:
             if p.restores:
                 cells.append(Cell((f"scale to ≤ {float(p.tightened or 0):.4g}",)))
@@ -294,7 +290,10 @@ def _ranking(analysis: Analysis) -> Section:
         Table(tuple(header), tuple(rows)),
         Paragraph(("Margins are scales of that one tolerance: alone = the others at nominal; others full = "
                    "the others over their whole range. 1 means the tolerance as given; ≥ means stable up to "
-                   "the value shown (no failure found before the cap or the budget).",), "note"),
+                   "the value shown (no failure found before the cap). Parts marked (limit), (order lost) or "
+                   "(factor at 0) never make a root cross on their own: their margin ends where the model "
+                   "stops standing for the hardware, and they are ranked after the parts that cross; "
+                   "? marks an end not proven within the work budget.",), "note"),
         Figure("ranking", "Per-parameter margins; the dashed line at 1 is the tolerance as given. "
                "Bars longer than the axis are cut, with their value written beside them.",
                "bar chart of per-parameter margins"),
@@ -363,15 +362,16 @@ def _record(analysis: Analysis) -> Section:
         (Cell(("case file",)), Cell((case.path,), mono=True)),
         (Cell(("SHA-256 of the case file",)),
          Cell((Num(case.sha256, case.sha256, "case_sha256"),), mono=True)),
-        (Cell(("budget",)), Cell((f"{s.max_seconds:g} s for the exact analyses; {s.yield_draws} yield "
-                                  f"draws; seed {s.seed}",))),
+        (Cell(("budget",)), Cell((f"check: {s.max_boxes} boxes; margins and ranking: fixed work budgets; "
+                                  f"safety stop {s.max_seconds:g} s"
+                                  + (" (it fired)" if analysis.safety_stop else " (not reached)")
+                                  + f"; {s.yield_draws} yield draws; seed {s.seed}",))),
         (Cell(("times",)), Cell((f"check {analysis.check.seconds:.2f} s, "
                                  f"margin {analysis.margin.seconds:.2f} s, "
                                  f"rank {analysis.rank.seconds:.2f} s, "
                                  f"yield {analysis.yield_result.seconds:.2f} s",))),
     )
-    rerun = (f"robust report {case.path} -o DIR --max-seconds {s.max_seconds:g} "
-             f"--draws {s.yield_draws} --seed {s.seed}")
+    rerun = rerun_command(analysis)
     return Section("Record", (Table(("item", "value"), rows), Paragraph(("To re-run: ",)),
                               Preformatted(rerun)), anchor="record")
 

@@ -47,7 +47,9 @@ def result_data(analysis: Analysis) -> dict[str, object]:
         "rank": analysis.rank.as_dict(),
         "yield": analysis.yield_result.as_dict(),
         "certificate": certificate_data(analysis),
-        "settings": {"max_seconds": analysis.settings.max_seconds,
+        "settings": {"max_boxes": analysis.settings.max_boxes,
+                     "max_seconds": analysis.settings.max_seconds,
                      "yield_draws": analysis.settings.yield_draws,
                      "seed": analysis.settings.seed},
+        "safety_stop": analysis.safety_stop,
     }

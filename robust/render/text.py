@@ -87,11 +87,7 @@ def render_check(case, result) -> str:
     lines = [f"Case: {case.title}   [{case.path}]",
              f"Family: degree {fam.degree}, {len(fam.names)} parameters, {fam.kind} dependence"]
     lines.append(f"Nominal: {_roots_line(result.nominal)}")
-    headline = {
-        "stable": "STABLE for every parameter set inside the tolerances (proven)",
-        "unstable": "UNSTABLE: a parameter set inside the tolerances is not stable",
-        "undecided": "UNDECIDED within the budget",
-    }[result.verdict]
+    headline = result.verdict.headline
     lines.append(f"Verdict: {headline}")
     lines.append(f"Method: {result.method_text}")
     lines.append(f"Why: {result.reason}")
@@ -184,8 +180,21 @@ def _bracket_text(b) -> str:
     return text
 
 
-def _pass_text(passed) -> str:
-    return {True: "PASS", False: "FAIL", None: "UNDECIDED"}[passed]
+def margin_reading(bracket, limit) -> str:
+    """What rho* means for the design, in plain words (shared by the terminal and the report)."""
+    lower = float(bracket.lower)
+    if limit.kind.value == "cap":
+        return f"Proven stable with every tolerance up to x{lower:.4g} as wide; no end was found before."
+    if limit.kind.value != "crossing":
+        return (f"Proven stable up to x{lower:.4g}. Past x{float(limit.scale):.6g} the scaled box no "
+                "longer stands for the hardware: this end is a property of the model, not stability "
+                "headroom, and nothing is claimed beyond it.")
+    if bracket.upper is not None and bracket.upper <= 1:
+        return (f"Not stable over the stated tolerances: every tolerance would have to shrink to "
+                f"x{lower:.4g} of its width.")
+    if lower >= 1:
+        return f"Stable over the stated tolerances; every tolerance could be x{lower:.4g} as wide."
+    return f"Proven stable up to x{lower:.4g} of the stated tolerances."
 
 
 def render_margin(case, result) -> str:
@@ -193,40 +202,52 @@ def render_margin(case, result) -> str:
     m = result.margin
     lines = [f"Case: {case.title}   [{case.path}]",
              f"Robust margin rho* (scale of every tolerance about nominal): {_bracket_text(m)}",
-             f"  method: {result.method}"]
-    if m.upper is None:
-        lines.append(f"  stable with every tolerance scaled by at least {float(m.lower):.6g}")
-    elif m.lower >= 1:
-        lines.append(f"  the design passes with headroom: tolerances can grow by {float(m.lower - 1):.3%}")
-    else:
-        lines.append(f"  the design fails: tolerances must shrink to {float(m.lower):.3%} of their width")
+             f"  method: {result.method}",
+             f"  what ends it: {result.limit.sentence()}",
+             "  " + margin_reading(m, result.limit)]
     if m.witness is not None:
         pts = ", ".join(f"{n} = {float(v):.6g}" for n, v in m.witness.parameters.items())
         lines.append(f"  witness just beyond the margin: {pts}")
-    if result.requirement is not None:
-        lines.append(f"Requirement margin >= {float(result.requirement):g}: {_pass_text(result.passed)}")
+    if result.outcome is not None:
+        lines.append(f"Requirement margin >= {float(result.requirement):g}: {result.outcome.word}")
     if result.decay is not None:
         d = result.decay
         lines.append(f"Decay-rate margin sigma* (every root has Re(s) < -sigma): {_bracket_text(d.bracket)}")
         settle = d.settling_time()
         if settle is not None:
             lines.append(f"  worst-case 2 % settling time about 4/sigma = {settle:.4g} s (common rule of thumb)")
-        if d.requirement is not None:
-            lines.append(f"Requirement decay_rate >= {float(d.requirement):g}: {_pass_text(d.passed)}")
+        if d.outcome is not None:
+            lines.append(f"Requirement decay_rate >= {float(d.requirement):g}: {d.outcome.word}")
+    if result.safety_stop:
+        lines.append("Note: the wall-clock safety limit stopped the search early; a re-run may differ.")
     lines.append(f"Time: {result.seconds:.2f} s")
     return "\n".join(lines)
+
+
+def _scale_cell(bracket, limit) -> str:
+    """A rank cell: the margin, marked by what ends it when that is not a crossing."""
+    value = f"{float(bracket.lower):.6g}"
+    mark = {"crossing": "", "physical_limit": " L", "degree_loss": " D", "denominator": " F", "cap": "+"}
+    return value + mark[limit.kind.value] + ("?" if not limit.proven else "")
 
 
 def render_rank(case, result) -> str:
     """``robust rank`` for people."""
     lines = [f"Case: {case.title}   [{case.path}]",
              "Parameters, most critical first (margins are scales of that tolerance):",
-             f"{'parameter':<12} {'tolerance':<10} {'alone':>12} {'others full':>12}  acts through"]
+             f"{'parameter':<12} {'tolerance':<10} {'alone':>14} {'others full':>14}  acts through"]
     for p in result.parameters:
-        alone = f"{float(p.margin_alone.lower):.6g}" + ("+" if p.margin_alone.upper is None else "")
-        given = f"{float(p.margin_given_others.lower):.6g}" + ("+" if p.margin_given_others.upper is None else "")
+        alone = _scale_cell(p.margin_alone, p.limit_alone)
+        given = _scale_cell(p.margin_given_others, p.limit_given_others)
         acts = ", ".join(f"a{power}({d})" for power, d in p.coefficients)
-        lines.append(f"{p.name:<12} {p.tolerance:<10} {alone:>12} {given:>12}  {acts}")
+        lines.append(f"{p.name:<12} {p.tolerance:<10} {alone:>14} {given:>14}  {acts}")
+    limited = [p for p in result.parameters if p.limit_alone.kind.value in ("physical_limit", "degree_loss",
+                                                                             "denominator")]
+    if limited:
+        lines.append("")
+        lines.append("Alone, these parts never destabilise the loop; their margin ends where the model ends:")
+        for p in limited:
+            lines.append(f"  {p.name}: {p.limit_alone.sentence()}")
     if result.robustly_stable is False:
         lines.append("")
         lines.append("The design is not robustly stable. Tightening one tolerance alone (others as given):")
@@ -235,7 +256,12 @@ def render_rank(case, result) -> str:
                 lines.append(f"  {p.name}: scale its tolerance to at most {float(p.tightened):.4g} x the present one")
             elif p.restores is False:
                 lines.append(f"  {p.name}: no tightening of this part alone restores stability")
-    lines.append("(+ : stable up to the cap; 'alone': others at nominal; 'others full': others over their range)")
+    lines.append("(no mark: a root crosses there; L: the part reaches its physical limit; D: the leading "
+                 "coefficient reaches zero; F: a divided-out factor reaches zero; +: stable up to the cap; "
+                 "?: not proven within the work budget; 'alone': others at nominal; "
+                 "'others full': others over their range)")
+    if result.safety_stop:
+        lines.append("Note: the wall-clock safety limit stopped a search early; a re-run may differ.")
     return "\n".join(lines)
 
 
@@ -256,7 +282,10 @@ def render_yield(case, result) -> str:
 
 def render_requirements(requirements) -> str:
     """Pass/fail lines for the case's requirements."""
-    words = {"margin": "margin (stable with every tolerance scaled by {v:g})",
-             "decay_rate": "decay rate (every root has Re(s) < -{v:g})"}
-    return "\n".join(f"Requirement {words[r.name].format(v=float(r.required))}: {_pass_text(r.passed)}"
-                     for r in requirements)
+    lines = []
+    for r in requirements:
+        line = f"Requirement {r.name.replace('_', ' ')} ({r.wording}): {r.outcome.word}"
+        if r.problem is not None:
+            line += f" ({r.problem.detail})"
+        lines.append(line)
+    return "\n".join(lines)
