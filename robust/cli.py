@@ -205,7 +205,7 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
 @click.option("--cap", default="100", show_default=True, help="Largest tolerance scale tried.")
 @click.option("--rel-tol", type=click.FloatRange(min=1e-15, max=0.5), default=None,
               help="Relative bracket width asked for [default: 1e-9 interval families, 1e-6 others].")
-@_search_budget_options(2000, 48)
+@_search_budget_options(1000, 48)
 @click.option("--no-decay", is_flag=True, help="Skip the decay-rate margin.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 @_guarded
@@ -241,7 +241,7 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
 
 @main.command("rank")
 @click.argument("case", type=_CASE)
-@_search_budget_options(1000, 24)
+@_search_budget_options(500, 16)
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 @_guarded
 def rank_command(case: str, max_seconds: float, max_boxes: int, max_tests: int, as_json: bool) -> None:
@@ -330,6 +330,10 @@ def _summary_lines(analysis, files) -> list[str]:
               help="Directory for report.html, report.md, figures/ and result.json.")
 @click.option("--max-boxes", type=click.IntRange(min=1), default=20_000, show_default=True,
               help="Work budget of the check: sub-boxes/edges to examine.")
+@click.option("--search-boxes", type=click.IntRange(min=1), default=1000, show_default=True,
+              help="Work budget of the margin search: sub-boxes per decision (the ranking takes half).")
+@click.option("--search-tests", type=click.IntRange(min=1), default=48, show_default=True,
+              help="Work budget of the margin search: decisions (the ranking takes a third per part).")
 @click.option("--max-seconds", type=click.FloatRange(min=1.0), default=600.0, show_default=True,
               help="Safety stop in wall-clock seconds for the whole report (reported when it fires).")
 @click.option("--draws", type=click.IntRange(min=1, max=10**7), default=20_000, show_default=True,
@@ -337,8 +341,8 @@ def _summary_lines(analysis, files) -> list[str]:
 @click.option("--seed", type=int, default=0, show_default=True, help="Random seed.")
 @click.option("--json", "as_json", is_flag=True, help="Print the result as one JSON document.")
 @_guarded
-def report_command(case: str, directory: str, max_boxes: int, max_seconds: float, draws: int,
-                   seed: int, as_json: bool) -> None:
+def report_command(case: str, directory: str, max_boxes: int, search_boxes: int, search_tests: int,
+                   max_seconds: float, draws: int, seed: int, as_json: bool) -> None:
     """Write the sign-off report of CASE into a directory (HTML, Markdown, JSON).
 
     Exit code 0 when the report was written, whatever it concludes; 2: bad input.
@@ -349,8 +353,8 @@ def report_command(case: str, directory: str, max_boxes: int, max_seconds: float
 
     check_directory(directory)
     loaded = load_case(case)
-    analysis = analyse(loaded, max_seconds=max_seconds, max_boxes=max_boxes, yield_draws=draws,
-                       seed=seed, progress=_stage_printer)
+    analysis = analyse(loaded, max_seconds=max_seconds, max_boxes=max_boxes, search_boxes=search_boxes,
+                       search_tests=search_tests, yield_draws=draws, seed=seed, progress=_stage_printer)
     files = write_report(analysis, directory, progress=_stage_printer)
     if as_json:
         _emit_json(result_data(analysis))

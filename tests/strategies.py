@@ -170,3 +170,33 @@ def case_toml(parameters, coefficients=None, expression=None, requirements=None,
         lines.append("[requirements]")
         lines += [f"{k} = {v}" for k, v in requirements.items()]
     return "\n".join(lines) + "\n"
+
+
+@st.composite
+def small_families(draw):
+    """(text, formulas, names) of a family of degree 3-4 in 2-3 parameters, affine or
+    multilinear, with a Hurwitz nominal: coefficients of a product of stable factors
+    s + r plus integer multiples of (p_j - 1) (every p_j has nominal 1)."""
+    degree = draw(st.integers(3, 4))
+    k = draw(st.integers(2, 3))
+    base = [Fraction(1)]
+    for _ in range(degree):
+        r = draw(st.integers(1, 4))
+        base = [a + r * b for a, b in zip([*base, Fraction(0)], [Fraction(0), *base], strict=True)]
+    multilinear = draw(st.booleans())
+    names = [f"p{j}" for j in range(k)]
+    formulas = []
+    for i, c in enumerate(base):
+        terms = [str(c)]
+        for j in range(k):
+            d = draw(st.integers(-2, 3))
+            if d:
+                terms.append(f"{d}*(p{j} - 1)")
+        if multilinear and i > 0:
+            e = draw(st.integers(-2, 2))
+            if e:
+                terms.append(f"{e}*(p0 - 1)*(p1 - 1)")
+        formulas.append(" + ".join(terms))
+    tolerances = [draw(st.sampled_from(["0.1", "0.2", "0.3", "0.5"])) for _ in range(k)]
+    params = {n: {"nominal": "1", "tolerance": t} for n, t in zip(names, tolerances, strict=True)}
+    return params, formulas, names

@@ -28,7 +28,7 @@ from robust.render.figures import FIGURE_NAMES
 
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
 IDS = [path.stem for path in CASES]
-QUICK = {"max_boxes": 2000, "yield_draws": 2000, "seed": 0}
+QUICK = {"max_boxes": 2000, "search_boxes": 200, "search_tests": 12, "yield_draws": 2000, "seed": 0}
 PNG_MAGIC = b"\x89PNG\r\n\x1a\n"
 
 
@@ -199,7 +199,8 @@ def test_report_refuses_a_foreign_directory(reports, tmp_path):
 def test_cli_report_refuses_a_foreign_directory(tmp_path):
     """`robust report` into a directory holding other files exits 2 with one line on stderr."""
     (tmp_path / "thesis.tex").write_text("mine")
-    result = CliRunner().invoke(main, ["report", str(CASES[0]), "-o", str(tmp_path)])
+    result = CliRunner().invoke(main, ["report", str(CASES[0]), "-o", str(tmp_path), "--max-boxes", "500",
+                                       "--search-boxes", "100", "--search-tests", "8"])
     assert result.exit_code == 2
     assert result.stderr.startswith("robust: error:") and result.stderr.count("\n") == 1
     assert (tmp_path / "thesis.tex").read_text() == "mine"
@@ -239,7 +240,7 @@ def test_report_escapes_user_text(tmp_path):
         '[parameters.a1]\nrange = [2, 3]\nnote = "<b>bold</b>"\n'
         '[parameters.a0]\nrange = [1, 2]\n'
         '[polynomial]\ncoefficients = ["1", "a1", "a0"]\n', encoding="utf-8")
-    analysis = analyse(load_case(case_file), yield_draws=200)
+    analysis = analyse(load_case(case_file), search_boxes=100, search_tests=8, yield_draws=200)
     files = write_report(analysis, tmp_path / "report")
     source = files.html.read_text(encoding="utf-8")
     assert "<script>" not in source and "<img src=x" not in source and "<b>bold" not in source

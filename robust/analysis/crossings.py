@@ -42,10 +42,12 @@ DEFAULT_CAP = Fraction(100)
 _R = sp.Symbol("r")
 
 
-def crossing_polynomials(coeffs: Sequence[sp.Expr]) -> list[sp.Poly]:
-    """a_0, a_n and Delta_(n-1) of a polynomial whose coefficients are polynomials in r."""
+def crossing_polynomials(coeffs: Sequence[sp.Expr], lead: bool = True) -> list[sp.Poly]:
+    """a_0, a_n (unless ``lead`` is False) and Delta_(n-1) of a polynomial whose coefficients
+    are polynomials in r. Without a_n only real crossings of the imaginary axis count (a root
+    at 0 or a pair r, -r); a_n reaching 0 is a loss of degree, reported as such elsewhere."""
     n = len(coeffs) - 1
-    out = [sp.Poly(sp.expand(coeffs[-1]), _R), sp.Poly(sp.expand(coeffs[0]), _R)]
+    out = [sp.Poly(sp.expand(coeffs[-1]), _R)] + ([sp.Poly(sp.expand(coeffs[0]), _R)] if lead else [])
     if n >= 2:
         # the determinant in exact polynomial arithmetic over QQ[r]: sympy's expression-level
         # Berkowitz + expand takes minutes at degree 10 (and ignores every time budget)
@@ -137,21 +139,25 @@ def path_expressions(path: Sequence[tuple[Fraction, Fraction]]) -> list[sp.Expr]
 
 
 def first_crossing(family: UncertainPolynomial, paths: Iterable[Sequence[tuple[Fraction, Fraction]]],
-                   cap: Fraction) -> RootBound | None:
+                   cap: Fraction, lead: bool = True) -> RootBound | None:
     """The least r in (0, cap] where the polynomial stops being Hurwitz along any of the
-    straight paths (value a + b*r per parameter), starting from a Hurwitz point at r = 0."""
+    straight paths (value a + b*r per parameter), starting from a Hurwitz point at r = 0;
+    with ``lead`` False a leading coefficient reaching 0 does not count."""
     polys: list[sp.Poly] = []
     for path in paths:
         values = path_expressions(path)
-        polys += crossing_polynomials([substitute_expressions(c, values) for c in family.coefficients])
+        polys += crossing_polynomials([substitute_expressions(c, values) for c in family.coefficients], lead)
     return first_positive_root(polys, cap)
 
 
-def path_margin(family: UncertainPolynomial, index: int, cap: Fraction = DEFAULT_CAP) -> RootBound | None:
-    """Exact first crossing of parameter ``index`` alone (the others at nominal), over the two
-    directions of its range; None when the polynomial stays Hurwitz up to ``cap``."""
-    scaling = Scaling.one(family, index, others_full=False)
-    return first_crossing(family, scaling.vertex_paths((index,)), cap)
+def path_margin(family: UncertainPolynomial, index: int, cap: Fraction = DEFAULT_CAP, side: int = 0
+                ) -> RootBound | None:
+    """Exact first crossing of the imaginary axis as parameter ``index`` alone moves (the
+    others at nominal) over the directions of its range given by ``side`` (+1 up, -1 down,
+    0 both); None when no root crosses up to ``cap`` (a leading coefficient reaching 0 is a
+    loss of degree, not a crossing)."""
+    scaling = Scaling(family, (index,), False, side)
+    return first_crossing(family, scaling.vertex_paths((index,)), cap, lead=False)
 
 
 def ray_witness(family: UncertainPolynomial, target: Sequence[Fraction], limit: Fraction

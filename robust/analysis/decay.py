@@ -86,7 +86,7 @@ def _decay_upper(family: UncertainPolynomial, seed: int = 0):
 
 
 def decay_rate(family: UncertainPolynomial, requirement: Fraction | None = None,
-               rel_tol: float = 1e-6, max_boxes: int = 2000, max_tests: int = 48,
+               rel_tol: float = 1e-6, max_boxes: int = 500, max_tests: int = 48,
                max_seconds: float = 600.0, requirement_boxes: int = DEFAULT_REQUIREMENT_BOXES
                ) -> DecayResult:
     """Certified bracket on the worst-case decay rate over the family's box.
@@ -124,6 +124,9 @@ def decay_rate(family: UncertainPolynomial, requirement: Fraction | None = None,
                 bracket = bisect_margin(test, upper, False, tol, work, upper=upper, witness=witness)
     if requirement is None:
         return DecayResult(bracket, None, None)
+    outcome = requirement_outcome(requirement, None, bracket.lower, bracket.upper)
+    if outcome is not Outcome.OPEN:  # the bracket decides it
+        return DecayResult(bracket, requirement, outcome)
     direct = decide_requirement(family, "decay_rate", requirement, requirement_boxes,
                                 max(work.deadline - time.perf_counter(), 0.01))
     outcome = requirement_outcome(requirement, direct.direct, bracket.lower, bracket.upper)

@@ -45,7 +45,7 @@ from .verdict import Witness, decide
 __all__ = ["DEFAULT_MARGIN_BOXES", "DEFAULT_MARGIN_TESTS", "MarginResult", "crossing_end", "margin"]
 
 #: Box budget of each decision inside a margin search, and how many decisions it may make.
-DEFAULT_MARGIN_BOXES = 2000
+DEFAULT_MARGIN_BOXES = 1000
 DEFAULT_MARGIN_TESTS = 48
 
 
@@ -127,7 +127,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
         Relative bracket width asked for (default 1e-9 for interval families, 1e-6 otherwise).
     max_boxes, max_tests
         The work budget: decisions of at most ``max_boxes`` boxes, at most ``max_tests`` of
-        them for rho* (as many again for the decay rate).
+        them for rho* (as many again, of half the boxes, for the decay rate).
     max_seconds
         A wall-clock safety stop, reported when it fires (``safety_stop``).
 
@@ -145,7 +145,8 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
     work = Work(max_tests, started + max_seconds)
     decay = None
     if with_decay:
-        decay = decay_rate(family, getattr(requirements, "decay_rate", None), max_boxes=max_boxes,
+        # the shifted family's decisions are the dearer ones (larger coefficients): half the boxes
+        decay = decay_rate(family, getattr(requirements, "decay_rate", None), max_boxes=max(max_boxes // 2, 1),
                            max_tests=max_tests, max_seconds=max_seconds,
                            requirement_boxes=requirement_boxes)
     req = getattr(requirements, "margin", None)
@@ -164,18 +165,20 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
     def done(bracket: Bracket, method: str, limit: ScaleEnd) -> MarginResult:
         direct = outcome = None
         if req is not None:
-            direct = decide_requirement(family, "margin", req, requirement_boxes,
-                                        max(work.deadline - time.perf_counter(), 0.01))
             certified_upper = bracket.upper if limit.kind is LimitKind.CAP else \
                 min(x for x in (bracket.upper, limit.upper) if x is not None)
-            outcome = requirement_outcome(req, direct.direct, bracket.lower, certified_upper)
-            # the bracket agrees with the direct decision
-            if direct.direct is Verdict.STABLE and bracket.lower < req:
-                bracket = replace(bracket, lower=req)
-            elif direct.direct is Verdict.UNSTABLE and (bracket.upper is None or bracket.upper > req):
-                bracket = replace(bracket, upper=req, witness=direct.witness)
-                if limit.kind is not LimitKind.CROSSING or limit.scale > req:
-                    limit = crossing_end(family, bracket)
+            outcome = requirement_outcome(req, None, bracket.lower, certified_upper)
+            if outcome is Outcome.OPEN:  # the bracket does not decide it: decide it directly
+                direct = decide_requirement(family, "margin", req, requirement_boxes,
+                                            max(work.deadline - time.perf_counter(), 0.01))
+                outcome = requirement_outcome(req, direct.direct, bracket.lower, certified_upper)
+                # the bracket agrees with the direct decision
+                if direct.direct is Verdict.STABLE and bracket.lower < req:
+                    bracket = replace(bracket, lower=req)
+                elif direct.direct is Verdict.UNSTABLE and (bracket.upper is None or bracket.upper > req):
+                    bracket = replace(bracket, upper=req, witness=direct.witness)
+                    if limit.kind is not LimitKind.CROSSING or limit.scale > req:
+                        limit = crossing_end(family, bracket)
         return MarginResult(bracket, method, decay, req, outcome, limit, time.perf_counter() - started,
                             direct, work.clock_fired)
 
@@ -214,13 +217,20 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
     ray = ray_upper_bound(family, end.scale)
     if ray is not None:
         upper, witness = ray
-        lower = just_below(upper, tol)
-        work.tests += 1
-        if test(lower)[0] is Verdict.STABLE:
+        # proofs get cheaper away from the boundary: step down from the asked width until
+        # one holds, then bisect between the proven and the witnessed ends
+        lower = Fraction(0)
+        for rel in sorted({tol, *(Fraction(1, 10**k) for k in (4, 3, 2) if Fraction(1, 10**k) > tol)}):
+            candidate = just_below(upper, rel)
+            work.tests += 1
+            if test(candidate)[0] is Verdict.STABLE:
+                lower = candidate
+                break
+        if lower >= just_below(upper, tol):
             bracket = Bracket(lower, upper, witness=witness)
             return done(bracket, "ray bound, proven by the decision ladder", crossing_end(family, bracket))
-        bracket = bisect_margin(test, end.scale, end.kind is LimitKind.CAP, tol, work, upper=upper,
-                                witness=witness, tighten=tightener(family, end.scale))
+        bracket = bisect_margin(test, end.scale, end.kind is LimitKind.CAP, tol, work, lower=lower,
+                                upper=upper, witness=witness, tighten=tightener(family, end.scale))
         return done(bracket, "bisection with the decision ladder", crossing_end(family, bracket))
     bracket = bisect_margin(test, end.scale, end.kind is LimitKind.CAP, tol, work,
                             tighten=tightener(family, end.scale))

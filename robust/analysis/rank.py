@@ -27,7 +27,7 @@ from ..exact.numbers import short_between
 from ..model.family import UncertainPolynomial
 from ..model.graph import build_graph
 from .bracket import Bracket, Work, bisect_margin, float_down, just_below
-from .crossings import DEFAULT_CAP, path_margin
+from .crossings import DEFAULT_CAP, RootBound, path_margin
 from .limits import ScaleEnd, end_of_scaling
 from .margin import crossing_end
 from .outcomes import LimitKind, Verdict, untestable
@@ -92,10 +92,26 @@ class RankResult:
 def _alone(family: UncertainPolynomial, i: int, cap: Fraction, tol: Fraction, max_boxes: int
            ) -> tuple[Bracket, ScaleEnd]:
     """Parameter ``i`` alone: exact, by the first crossing on the segment of its range."""
-    scaling = Scaling.one(family, i, others_full=False)
-    end = end_of_scaling(scaling, cap)
-    root = path_margin(family, i, end.scale)
-    if root is None or root.lower > end.scale:  # a crossing at the end itself is named
+    # each direction on its own: a crossing counts when it comes before that direction's own
+    # end (a limit reached at the same scale is named instead); over the two directions the
+    # smaller wins, and at a tie a crossing in one direction is named over a limit in the other
+    best: tuple[Fraction, int, RootBound | None, ScaleEnd, int] | None = None
+    for side in (1, -1):
+        one_way = Scaling(family, (i,), False, side)
+        if not one_way.free():
+            continue
+        end_s = end_of_scaling(one_way, cap)
+        root_s = path_margin(family, i, end_s.scale, side)
+        if root_s is not None and root_s.lower < end_s.scale:
+            key = (root_s.lower, 0, root_s, end_s, side)
+        else:
+            key = (end_s.scale, 1, None, end_s, side)
+        if best is None or key[:2] < best[:2]:
+            best = key
+    assert best is not None  # the parameter has a tolerance
+    _, _, root, end, side = best
+    scaling = Scaling(family, (i,), False, side)
+    if root is None:
         # no crossing before the end: stable on every box(rho), rho < end (exact), so the
         # margin is the end itself (a supremum, not attained when the end is a limit)
         upper = None if end.kind is LimitKind.CAP else end.scale
@@ -153,7 +169,7 @@ def _given_others(family: UncertainPolynomial, i: int, robust_ok: bool | None, c
 
 
 def rank(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float = 1e-3,
-         max_seconds: float = 600.0, max_boxes: int = 1000, max_tests: int = 24) -> RankResult:
+         max_seconds: float = 600.0, max_boxes: int = 500, max_tests: int = 16) -> RankResult:
     """Rank the parameters by how little tolerance growth they stand (most critical first).
 
     Parameters

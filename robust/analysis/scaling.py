@@ -27,6 +27,8 @@ class Scaling:
     family: UncertainPolynomial
     scaled: tuple[int, ...]
     others_full: bool = False
+    #: +1: the scaled parameters move up only, -1: down only, 0: both ways
+    side: int = 0
 
     @staticmethod
     def everything(family: UncertainPolynomial) -> Scaling:
@@ -42,7 +44,7 @@ class Scaling:
         fam = self.family
         n, lo, hi = fam.nominal[i], fam.box.low[i], fam.box.high[i]
         if i in self.scaled:
-            return n - rho * (n - lo), n + rho * (hi - n)
+            return (n if self.side > 0 else n - rho * (n - lo)), (n if self.side < 0 else n + rho * (hi - n))
         return (lo, hi) if self.others_full else (n, n)
 
     def box(self, rho: Fraction) -> Box:
@@ -53,8 +55,16 @@ class Scaling:
     def free(self) -> tuple[int, ...]:
         """Parameters that move inside box(rho) for rho > 0."""
         fam = self.family
-        return tuple(i for i in range(len(fam.names))
-                     if fam.box.high[i] > fam.box.low[i] and (i in self.scaled or self.others_full))
+        out = []
+        for i in range(len(fam.names)):
+            n, lo, hi = fam.nominal[i], fam.box.low[i], fam.box.high[i]
+            if i in self.scaled:
+                moves = (self.side <= 0 and lo < n) or (self.side >= 0 and hi > n)
+            else:
+                moves = self.others_full and hi > lo
+            if moves:
+                out.append(i)
+        return tuple(out)
 
     def vertex_paths(self, used: Sequence[int]) -> Iterator[tuple[tuple[Fraction, Fraction], ...]]:
         """For each vertex of box(rho) over the parameters ``used`` (the others at nominal):
@@ -66,7 +76,8 @@ class Scaling:
             if i not in used or hi == lo or (i not in self.scaled and not self.others_full):
                 choices.append(((n, Fraction(0)),))
             elif i in self.scaled:
-                choices.append(tuple(dict.fromkeys(((n, -(n - lo)), (n, hi - n)))))
+                ways = (((n, -(n - lo)),) if self.side <= 0 else ()) + (((n, hi - n),) if self.side >= 0 else ())
+                choices.append(tuple(dict.fromkeys(ways)))
             else:
                 choices.append(((lo, Fraction(0)), (hi, Fraction(0))))
         yield from product(*choices)
@@ -80,8 +91,10 @@ class Scaling:
         for i in self.scaled:
             n, lo, hi = fam.nominal[i], fam.box.low[i], fam.box.high[i]
             lo_limit, hi_limit = fam.limit_of(i)
-            for rho in (((n - lo_limit) / (n - lo)) if lo_limit is not None and lo < n else None,
-                        ((hi_limit - n) / (hi - n)) if hi_limit is not None and hi > n else None):
+            for rho in (((n - lo_limit) / (n - lo)) if lo_limit is not None and lo < n and self.side <= 0
+                        else None,
+                        ((hi_limit - n) / (hi - n)) if hi_limit is not None and hi > n and self.side >= 0
+                        else None):
                 if rho is None:
                     continue
                 if best is None or rho < best:

@@ -13,7 +13,6 @@ from collections.abc import Sequence
 from fractions import Fraction
 
 import numpy as np
-from scipy.optimize import minimize
 
 from ..model.family import Box, UncertainPolynomial
 from ..exact.routh import is_hurwitz
@@ -117,6 +116,8 @@ def search_witness(
 
     if scores[order[0]] < -0.1:
         return None  # every sample is far from the boundary: leave the rest to subdivision
+    from scipy.optimize import minimize  # loaded only when a local search runs (it is slow to import)
+
     for idx in order[:local]:
         if deadline is not None and time.perf_counter() > deadline:
             break

@@ -9,7 +9,7 @@ from datetime import datetime
 
 from .._version import __version__
 from ..model.case import Case
-from .margin import MarginResult, margin
+from .margin import DEFAULT_MARGIN_BOXES, DEFAULT_MARGIN_TESTS, MarginResult, margin
 from .requirements import RequirementCheck, check_requirements
 from .montecarlo import YieldResult, estimate_yield
 from .rank import RankResult, rank
@@ -26,6 +26,8 @@ class Settings:
     yield_draws: int
     seed: int
     max_boxes: int = DEFAULT_MAX_BOXES
+    search_boxes: int = DEFAULT_MARGIN_BOXES
+    search_tests: int = DEFAULT_MARGIN_TESTS
 
 
 @dataclass(frozen=True, slots=True)
@@ -47,6 +49,11 @@ class Analysis:
     settings: Settings = Settings(600.0, 20000, 0)
 
     @property
+    def started_epoch_seconds(self) -> int:
+        """When the analysis began, in seconds since the Unix epoch."""
+        return int(datetime.fromisoformat(self.started).timestamp())
+
+    @property
     def safety_stop(self) -> bool:
         """Whether the wall-clock safety limit cut any stage short (results may then differ
         from a re-run on another machine)."""
@@ -55,6 +62,7 @@ class Analysis:
 
 
 def analyse(case: Case, *, max_seconds: float = 600.0, max_boxes: int = DEFAULT_MAX_BOXES,
+            search_boxes: int = DEFAULT_MARGIN_BOXES, search_tests: int = DEFAULT_MARGIN_TESTS,
             yield_draws: int = 20000, seed: int = 0,
             progress: Callable[[str], None] | None = None) -> Analysis:
     """Run check, requirements, margin, rank and Monte Carlo yield on ``case``.
@@ -62,8 +70,11 @@ def analyse(case: Case, *, max_seconds: float = 600.0, max_boxes: int = DEFAULT_
     Parameters
     ----------
     max_boxes
-        The check's box budget; the margin, decay-rate and ranking searches use their own
-        fixed work budgets (decisions counted), so a report is the same on any machine.
+        The check's box budget.
+    search_boxes, search_tests
+        The margin search's budget: at most ``search_tests`` decisions of at most
+        ``search_boxes`` boxes each; the ranking takes half the boxes and a third of the
+        decisions per part. Work is counted, so a report is the same on any machine.
     max_seconds
         A wall-clock safety stop for the whole analysis; when it fires, the stage it cut
         says so (``safety_stop``) and the report shows it.
@@ -91,10 +102,12 @@ def analyse(case: Case, *, max_seconds: float = 600.0, max_boxes: int = DEFAULT_
         say("requirements: deciding them directly")
         requirements = check_requirements(case, max_seconds=left())
     say("margin: robust margin and decay rate")
-    margins = margin(case, max_seconds=left())
+    margins = margin(case, max_seconds=left(), max_boxes=search_boxes, max_tests=search_tests)
     say("rank: per-parameter margins")
-    ranking = rank(case, max_seconds=left())
+    ranking = rank(case, max_seconds=left(), max_boxes=max(search_boxes // 2, 1),
+                   max_tests=max(search_tests // 3, 1))
     say(f"yield: {yield_draws} random builds (seed {seed})")
     builds = estimate_yield(case, yield_draws, seed)
     return Analysis(case, verdict, margins, requirements, ranking, builds, started, __version__,
-                    Settings(float(max_seconds), int(yield_draws), int(seed), int(max_boxes)))
+                    Settings(float(max_seconds), int(yield_draws), int(seed), int(max_boxes),
+                             int(search_boxes), int(search_tests)))

@@ -80,6 +80,7 @@ def rerun_command(analysis: Analysis, case_path: str | None = None) -> str:
     """The exact command that reproduces a report (same work budget, draws and seed)."""
     s = analysis.settings
     return (f"robust report {case_path or analysis.case.path} -o DIR --max-boxes {s.max_boxes} "
+            f"--search-boxes {s.search_boxes} --search-tests {s.search_tests} "
             f"--max-seconds {s.max_seconds:g} --draws {s.yield_draws} --seed {s.seed}")
 
 
@@ -362,7 +363,8 @@ def _record(analysis: Analysis) -> Section:
         (Cell(("case file",)), Cell((case.path,), mono=True)),
         (Cell(("SHA-256 of the case file",)),
          Cell((Num(case.sha256, case.sha256, "case_sha256"),), mono=True)),
-        (Cell(("budget",)), Cell((f"check: {s.max_boxes} boxes; margins and ranking: fixed work budgets; "
+        (Cell(("budget",)), Cell((f"check: {s.max_boxes} boxes; margins: {s.search_tests} decisions of "
+                                  f"{s.search_boxes} boxes (ranking: a third and half of that); "
                                   f"safety stop {s.max_seconds:g} s"
                                   + (" (it fired)" if analysis.safety_stop else " (not reached)")
                                   + f"; {s.yield_draws} yield draws; seed {s.seed}",))),

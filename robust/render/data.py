@@ -40,7 +40,9 @@ def result_data(analysis: Analysis) -> dict[str, object]:
         "case": case.path,
         "title": case.title,
         "tool": {"name": TOOL_NAME, "version": analysis.version},
-        "date": analysis.started,
+        # when it ran: a key ending in "seconds", the one kind of key that may differ between
+        # two runs of the same input (DESIGN.md section 5); the report shows the local date
+        "started_epoch_seconds": analysis.started_epoch_seconds,
         "case_sha256": case.sha256,
         "check": check_data(analysis),
         "margin": analysis.margin.as_dict(),
@@ -48,6 +50,8 @@ def result_data(analysis: Analysis) -> dict[str, object]:
         "yield": analysis.yield_result.as_dict(),
         "certificate": certificate_data(analysis),
         "settings": {"max_boxes": analysis.settings.max_boxes,
+                     "search_boxes": analysis.settings.search_boxes,
+                     "search_tests": analysis.settings.search_tests,
                      "max_seconds": analysis.settings.max_seconds,
                      "yield_draws": analysis.settings.yield_draws,
                      "seed": analysis.settings.seed},
