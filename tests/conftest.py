@@ -1,13 +1,23 @@
-"""Shared test configuration: one hypothesis profile for every run (local and CI)."""
+"""Shared test configuration: the hypothesis profiles.
+
+``ci`` (selected by .ci/run through HYPOTHESIS_PROFILE, and whenever CI is set) is
+derandomized: the same examples every run, so a run that passed passes again. ``explore``
+(the default elsewhere) draws new examples each run, to find new failures while developing;
+pin what it finds with ``@example``.
+"""
 
 from __future__ import annotations
+
+import os
 
 from hypothesis import settings
 
 # No deadline: exact arithmetic and the sympy references vary in time with the example, and
 # a 2-core CI machine is slow; 100 examples is hypothesis' own default, kept explicit here.
-settings.register_profile("ci", deadline=None, max_examples=100)
-settings.load_profile("ci")
+settings.register_profile("ci", deadline=None, max_examples=100, derandomize=True, database=None,
+                          print_blob=True)
+settings.register_profile("explore", deadline=None, max_examples=100)
+settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE") or ("ci" if os.environ.get("CI") else "explore"))
 
 # When a property fails, hypothesis' pytest plugin imports its patch writer, which imports
 # libcst, which triggers a DeprecationWarning (mypy_extensions.TypedDict); with
