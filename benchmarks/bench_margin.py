@@ -16,8 +16,8 @@ import statistics
 import time
 from fractions import Fraction
 
-from robust.model.case import parse_case
 from robust.analysis.margin import margin
+from robust.model.case import parse_case
 
 TARGET_INTERVAL_SECONDS = 0.2
 

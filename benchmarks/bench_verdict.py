@@ -23,9 +23,9 @@ import itertools
 import time
 from fractions import Fraction
 
-from robust.model.case import parse_case
-from robust.exact.routh import is_hurwitz
 from robust.analysis.verdict import check
+from robust.exact.routh import is_hurwitz
+from robust.model.case import parse_case
 
 
 def _case_text(title: str, parameters: dict[str, dict[str, str]], polynomial: str) -> str:

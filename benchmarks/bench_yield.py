@@ -20,8 +20,8 @@ import time
 
 import numpy as np
 
-from robust.model.case import parse_case
 from robust.analysis.montecarlo import draw_parameters, estimate_yield, float_routh_screen
+from robust.model.case import parse_case
 
 TARGET_RATIO = 50.0
 TARGET_RATE = 1e5

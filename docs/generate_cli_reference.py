@@ -79,11 +79,13 @@ NOTES: dict[str, dict[str, list[str]]] = {
             '`witness`: null, or `{"parameters": {name: exact-rational-string}, "roots": '
             "{...}}` plus `parameters_float`, `coefficients`, `root_values`, `found_by`",
             "`unresolved`: fraction of the box volume left undecided (0 when decided)",
-            '`requirements`: `{name: {"required", "passed", "witness"}}`, empty unless the '
-            "verdict is `stable`",
+            '`requirements`: `{name: {"required", "outcome", "passed", "direct", "witness", '
+            '"problem"}}`, empty unless the verdict is `stable`; `outcome` is `pass`, `fail` or '
+            "`open`, `problem` says why a required box does not stand for the loop (a part at "
+            "its limit, a divided-out factor changing sign, a degree loss)",
             "also: `case`, `title`, `method_text`, `family_class`, `largest_unproven`, "
-            "`overbound`, `reason`, `boxes`, `proven_boxes`, `edges`, `max_depth`, `seconds`, "
-            "`box`",
+            "`overbound`, `reason`, `boxes`, `proven_boxes`, `edges`, `max_depth`, `safety_stop` "
+            "(true when the wall-clock safety stop cut the work short), `seconds`, `box`",
         ],
     },
     "trace": {
@@ -107,9 +109,17 @@ NOTES: dict[str, dict[str, list[str]]] = {
             '`margin`: `{"lower": x, "upper": y}`, floats rounded outwards; `upper` is null '
             'for "at least lower"',
             "`exact`: the algebraic value of rho* as text, or null",
+            '`limit`: what ends rho*, `{"kind": K, "parameters": [names], "scale": x}` with K one '
+            "of `crossing` (a root reaches the imaginary axis; a witness lies just beyond), "
+            "`physical_limit` (a part reaches its limit first, stable all the way there), "
+            "`degree_loss` (the leading coefficient reaches 0), `denominator` (a divided-out "
+            "factor reaches 0), `cap` (nothing up to `--cap`); also `scale_exact`, `proven` "
+            "(false when an undecided stretch lies below it) and `note`",
             '`decay_rate`: `{"lower": x, "upper": y}` (absent with `--no-decay`)',
             "also: `margin_detail` and `decay_rate_detail` (exact rational ends, `note`), "
-            "`method`, `requirement`, `passed`, `witness`, `seconds`",
+            "`method`, `requirement`, `outcome` (`pass`, `fail`, `open` or null), `passed`, "
+            "`witness`, `safety_stop` (true when the wall-clock safety stop cut the search "
+            "short), `seconds`",
         ],
     },
     "rank": {
@@ -118,11 +128,13 @@ NOTES: dict[str, dict[str, list[str]]] = {
             "2: bad input",
         ],
         "json": [
-            "`parameters`: list, most critical first, each with `name` and `margin_alone` (the "
-            "proven lower end), plus `margin_alone_bracket`, `margin_given_others`, "
+            "`parameters`: list, most critical first (parts whose own margin ends in a crossing "
+            "first, then those that only reach a limit), each with `name`, `margin_alone` (the "
+            "proven lower end) and `limit` (what ends it, as in `margin`), plus "
+            "`margin_alone_bracket`, `margin_given_others`, `limit_given_others`, "
             "`margin_given_others_bracket`, `acts_through`, `tolerance`, `tightened_scale`, "
             "`restores_stability_alone`",
-            "also: `robustly_stable` (true, false or null), `seconds`",
+            "also: `robustly_stable` (true, false or null), `safety_stop`, `seconds`",
         ],
     },
     "yield": {
@@ -131,7 +143,7 @@ NOTES: dict[str, dict[str, list[str]]] = {
             "`draws`, `stable`, `unstable`, `yield` (stable / draws)",
             "`confidence` and `interval`: the Clopper-Pearson interval",
             "`seed`, `exact_rechecks`, `unstable_ranges` (name -> [low, high] of the unstable "
-            "draws), `draws_per_second`, `seconds`",
+            "draws), `seconds` (the only key that differs between runs)",
         ],
     },
     "report": {
@@ -144,8 +156,9 @@ NOTES: dict[str, dict[str, list[str]]] = {
             "`check`, `margin`, `rank`, `yield`: the same objects as those commands' `--json` "
             "(without their `case` and `title`)",
             "`certificate`: the exact Routh arrays of the Kharitonov polynomials",
-            "`case`, `title`, `tool` (`name`, `version`), `date`, `case_sha256`, `settings` "
-            "(`max_seconds`, `yield_draws`, `seed`)",
+            "`case`, `title`, `tool` (`name`, `version`), `started_epoch_seconds`, `case_sha256`, "
+            "`settings` (`max_boxes`, `search_boxes`, `search_tests`, `max_seconds`, "
+            "`yield_draws`, `seed`: what the re-run line repeats), `safety_stop`",
         ],
         "files": [
             "`DIR/report.html`: the sign-off report, self-contained (one file, figures inside)",

@@ -46,7 +46,8 @@ def _run(command: str, scratch: Path) -> tuple[str, int]:
     done = subprocess.run([sys.executable, "-m", "robust", *words[1:]], cwd=scratch, capture_output=True,
                           text=True, check=False, timeout=1800)
     stdout = _excerpt(done.stdout) if "--json" in words and done.returncode in (0, 1) else done.stdout
-    text = done.stderr.replace("\r", "\n") + stdout
+    progress = done.stderr.replace("\r", "\n").lstrip("\n")  # a progress line rewrites itself
+    text = progress + stdout
     text = text.replace(str(scratch) + "/", "")
     return text.rstrip("\n"), done.returncode
 

@@ -18,9 +18,9 @@ from pathlib import Path
 import pytest
 import sympy as sp
 
-from robust.model.case import load_case, parse_case
-from robust.errors import CaseError, InputError, RobustError
 from robust.analysis.verdict import check
+from robust.errors import CaseError, InputError, RobustError
+from robust.model.case import load_case, parse_case
 
 F = Fraction
 CASES_DIR = Path(__file__).resolve().parent.parent / "cases"

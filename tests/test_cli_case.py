@@ -23,8 +23,8 @@ import pytest
 import sympy as sp
 from click.testing import CliRunner
 
-from robust.model.case import load_case
 from robust.cli import main
+from robust.model.case import load_case
 
 F = Fraction
 CASES_DIR = Path(__file__).resolve().parent.parent / "cases"

@@ -19,10 +19,10 @@ import sympy as sp
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from robust.model.case import load_case
 from robust.errors import InputError
-from robust.model.family import Box, UncertainPolynomial, box_from, build_family, classify
 from robust.exact.polynomials import MultiPoly
+from robust.model.case import load_case
+from robust.model.family import Box, UncertainPolynomial, box_from, build_family, classify
 
 F = Fraction
 CASES = Path(__file__).resolve().parent.parent / "cases"

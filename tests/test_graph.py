@@ -22,10 +22,10 @@ import sympy as sp
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from robust.exact.interval import KHARITONOV_PATTERNS, interval_from_bounds
 from robust.model.case import load_case
 from robust.model.family import Box, build_family
 from robust.model.graph import build_graph, drivers, realise_vertex, write_graphml
-from robust.exact.interval import KHARITONOV_PATTERNS, interval_from_bounds
 
 F = Fraction
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))

@@ -26,13 +26,13 @@ from hypothesis import HealthCheck, assume, example, given, settings
 from hypothesis import strategies as st
 from strategies import case_toml, small_families
 
-from robust.model.case import parse_case
 from robust.analysis.decay import decay_rate
-from robust.model.family import shifted_family
 from robust.analysis.margin import margin
 from robust.analysis.rank import rank
 from robust.analysis.requirements import check_requirements
 from robust.analysis.verdict import decide
+from robust.model.case import parse_case
+from robust.model.family import shifted_family
 
 # -- building cases and checking answers independently ------------------------------------
 

@@ -19,10 +19,10 @@ from hypothesis import HealthCheck, assume, event, given, settings
 from hypothesis import strategies as st
 from strategies import case_toml
 
-from robust.model.case import parse_case
 from robust.analysis.rank import rank
-from robust.render.text import render_rank
 from robust.analysis.verdict import decide
+from robust.model.case import parse_case
+from robust.render.text import render_rank
 
 
 def _case_text(parameters: dict[str, dict[str, str]], coefficients: list[str] | None = None,

@@ -78,7 +78,7 @@ def test_report_rerun_line_reproduces_the_report(tmp_path):
     line = next(m.group(0) for m in re.finditer(r"robust report .*", markdown))
     words = shlex.split(line.replace("DIR", str(tmp_path / "two")))
     assert words[:2] == ["robust", "report"]
-    again = runner.invoke(main, words[2:])
+    again = runner.invoke(main, words[1:])
     assert again.exit_code == 0, again.output
     result = [json.loads((tmp_path / d / "result.json").read_text(encoding="utf-8")) for d in ("one", "two")]
     assert _strip(result[0]) == _strip(result[1])

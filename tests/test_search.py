@@ -16,9 +16,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from hypothesis.extra import numpy as hnp
 
-from robust.model.case import parse_case
-from robust.exact.routh import is_hurwitz
 from robust.analysis.search import batch_worst_angle, search_witness, worst_root_angle
+from robust.exact.routh import is_hurwitz
+from robust.model.case import parse_case
 
 
 def _angle_by_numpy(row) -> float:

@@ -24,10 +24,10 @@ from hypothesis import HealthCheck, event, given, settings
 from hypothesis import strategies as st
 from strategies import case_toml
 
+from robust.analysis.verdict import check, decide
+from robust.exact.routh import is_hurwitz
 from robust.model.case import load_case, parse_case
 from robust.model.family import Box
-from robust.exact.routh import is_hurwitz
-from robust.analysis.verdict import check, decide
 
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
 QUICK = {"max_boxes": 2000}

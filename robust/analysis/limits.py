@@ -59,7 +59,7 @@ class ScaleEnd:
         at = f"x{float(self.scale):.6g}"
         names = ", ".join(self.parameters)
         text = {
-            LimitKind.CROSSING: f"a root reaches the imaginary axis at {at}"
+            LimitKind.CROSSING: f"a root reaches the imaginary axis {'at' if self.exact else 'near'} {at}"
                                 + (f" (driven by {names})" if names else ""),
             LimitKind.PHYSICAL_LIMIT: f"stable until {names} reaches its physical limit at {at}; "
                                       "no root crosses before",

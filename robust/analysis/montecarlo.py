@@ -57,7 +57,6 @@ class YieldResult:
             "seed": self.seed,
             "exact_rechecks": self.exact_rechecks,
             "unstable_ranges": {n: [lo, hi] for n, lo, hi in self.unstable_ranges},
-            "draws_per_second": round(self.draws / self.seconds) if self.seconds > 0 else None,
             "seconds": round(self.seconds, 3),
         }
 

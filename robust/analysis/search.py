@@ -14,8 +14,8 @@ from fractions import Fraction
 
 import numpy as np
 
-from ..model.family import Box, UncertainPolynomial
 from ..exact.routh import is_hurwitz
+from ..model.family import Box, UncertainPolynomial
 
 __all__ = ["batch_worst_angle", "search_witness", "worst_root_angle"]
 

@@ -10,10 +10,10 @@ from datetime import datetime
 from .._version import __version__
 from ..model.case import Case
 from .margin import DEFAULT_MARGIN_BOXES, DEFAULT_MARGIN_TESTS, MarginResult, margin
-from .requirements import RequirementCheck, check_requirements
 from .montecarlo import YieldResult, estimate_yield
-from .rank import RankResult, rank
 from .outcomes import Verdict
+from .rank import RankResult, rank
+from .requirements import RequirementCheck, check_requirements
 from .verdict import DEFAULT_MAX_BOXES, CheckResult, check
 
 __all__ = ["Analysis", "Settings", "analyse"]

@@ -30,12 +30,12 @@ from fractions import Fraction
 
 import numpy as np
 
-from .edges import box_edges, check_segment
-from ..exact.numbers import format_fraction
-from ..model.family import Box, UncertainPolynomial
 from ..exact.interval import IntervalPolynomial, KharitonovResult, KharitonovVertex, kharitonov_test
+from ..exact.numbers import format_fraction
 from ..exact.polynomials import Bound, as_intervals
 from ..exact.routh import RootCounts, is_hurwitz, routh_table
+from ..model.family import Box, UncertainPolynomial
+from .edges import box_edges, check_segment
 from .outcomes import Verdict
 from .search import batch_worst_angle, search_witness
 

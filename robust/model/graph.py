@@ -18,8 +18,8 @@ from fractions import Fraction
 
 import networkx as nx
 
-from .family import Box, UncertainPolynomial
 from ..exact.interval import KHARITONOV_PATTERNS, IntervalPolynomial
+from .family import Box, UncertainPolynomial
 
 __all__ = ["Realisation", "build_graph", "drivers", "realise_vertex", "write_graphml"]
 

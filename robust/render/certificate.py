@@ -4,9 +4,9 @@ left of an undecided one."""
 
 from __future__ import annotations
 
+from ..analysis.verdict import CheckResult, Witness
 from ..exact.interval import KharitonovVertex
 from ..exact.routh import RouthTable
-from ..analysis.verdict import CheckResult, Witness
 from .blocks import Cell, Code, ItemList, Paragraph, Section, Table
 from .fmt import entry_cell, exact_cell, short
 

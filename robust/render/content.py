@@ -11,8 +11,8 @@ from fractions import Fraction
 from typing import Any
 
 from ..analysis.outcomes import Outcome, Verdict
-from ..model.graph import build_graph
 from ..analysis.signoff import Analysis
+from ..model.graph import build_graph
 from .blocks import (
     Badge,
     Cell,

@@ -20,9 +20,9 @@ from typing import Any
 
 import numpy as np
 
-from ..model.case import Case
-from ..exact.interval import KHARITONOV_PATTERNS
 from ..analysis.montecarlo import draw_parameters
+from ..exact.interval import KHARITONOV_PATTERNS
+from ..model.case import Case
 
 __all__ = ["choose_omegas", "nominal_roots", "polynomial_roots", "sample_draws", "value_set_data"]
 
