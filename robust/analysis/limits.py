@@ -47,12 +47,17 @@ class ScaleEnd:
     #: False when the search stopped before it could tell that this is what ends the margin
     #: (an undecided stretch lies below it).
     proven: bool = True
+    #: For a physical limit: the limit each named part reaches.
+    values: tuple[Fraction, ...] = ()
 
     def as_dict(self) -> dict[str, object]:
         """JSON (DESIGN.md section 5): kind, parameters, scale; plus exact text and proof."""
-        return {"kind": self.kind.value, "parameters": list(self.parameters),
-                "scale": float(self.scale), "scale_exact": self.exact, "proven": self.proven,
-                "note": self.note}
+        data: dict[str, object] = {"kind": self.kind.value, "parameters": list(self.parameters),
+                                   "scale": float(self.scale), "scale_exact": self.exact,
+                                   "proven": self.proven, "note": self.note}
+        if self.values:
+            data["limits_reached"] = [format_fraction(v) for v in self.values]
+        return data
 
     def sentence(self, what: str = "the family") -> str:
         """The end in plain words (``what`` names the scaled tolerances)."""
@@ -61,8 +66,10 @@ class ScaleEnd:
         text = {
             LimitKind.CROSSING: f"a root reaches the imaginary axis {'at' if self.exact else 'near'} {at}"
                                 + (f" (driven by {names})" if names else ""),
-            LimitKind.PHYSICAL_LIMIT: f"stable until {names} reaches its physical limit at {at}; "
-                                      "no root crosses before",
+            LimitKind.PHYSICAL_LIMIT: "stable until " + (", ".join(
+                f"{n} reaches its physical limit {float(v):g}" for n, v in zip(self.parameters, self.values,
+                                                                              strict=True))
+                if self.values else f"{names} reaches its physical limit") + f" at {at}; no root crosses before",
             LimitKind.DEGREE_LOSS: f"stable until the leading coefficient reaches zero at {at} "
                                    f"(through {names}): the model loses an order there; no root crosses before",
             LimitKind.DENOMINATOR: f"stable until a divided-out factor (in {names}) reaches zero at {at}; "
@@ -114,8 +121,9 @@ def end_of_scaling(scaling: Scaling, cap: Fraction) -> ScaleEnd:
     candidates: list[ScaleEnd] = [ScaleEnd(LimitKind.CAP, (), cap, cap, format_fraction(cap))]
     physical = scaling.physical_end()
     if physical is not None and physical[0] <= cap:
-        value, names = physical
-        candidates.append(ScaleEnd(LimitKind.PHYSICAL_LIMIT, names, value, value, format_fraction(value)))
+        value, names, limits = physical
+        candidates.append(ScaleEnd(LimitKind.PHYSICAL_LIMIT, names, value, value, format_fraction(value),
+                                   values=limits))
     sources = [(LimitKind.DEGREE_LOSS, family.coefficients[0])]
     sources += [(LimitKind.DENOMINATOR, factor) for factor in family.factors]
     for kind, poly in sources:

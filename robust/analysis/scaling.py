@@ -82,26 +82,29 @@ class Scaling:
                 choices.append(((lo, Fraction(0)), (hi, Fraction(0))))
         yield from product(*choices)
 
-    def physical_end(self) -> tuple[Fraction, tuple[str, ...]] | None:
-        """The least rho at which a scaled parameter reaches one of its physical limits, and
-        which parameters do (exact: the limits are exclusive, so box(rho) is valid below it)."""
+    def physical_end(self) -> tuple[Fraction, tuple[str, ...], tuple[Fraction, ...]] | None:
+        """The least rho at which a scaled parameter reaches one of its physical limits, which
+        parameters do and the limits they reach (exact: the limits are exclusive, so box(rho)
+        is valid below it)."""
         fam = self.family
         best: Fraction | None = None
         names: list[str] = []
+        values: list[Fraction] = []
         for i in self.scaled:
             n, lo, hi = fam.nominal[i], fam.box.low[i], fam.box.high[i]
             lo_limit, hi_limit = fam.limit_of(i)
-            for rho in (((n - lo_limit) / (n - lo)) if lo_limit is not None and lo < n and self.side <= 0
-                        else None,
-                        ((hi_limit - n) / (hi - n)) if hi_limit is not None and hi > n and self.side >= 0
-                        else None):
-                if rho is None:
+            for rho, limit in ((((n - lo_limit) / (n - lo)) if lo_limit is not None and lo < n
+                                and self.side <= 0 else None, lo_limit),
+                               (((hi_limit - n) / (hi - n)) if hi_limit is not None and hi > n
+                                and self.side >= 0 else None, hi_limit)):
+                if rho is None or limit is None:
                     continue
                 if best is None or rho < best:
-                    best, names = rho, [fam.names[i]]
+                    best, names, values = rho, [fam.names[i]], [limit]
                 elif rho == best and fam.names[i] not in names:
                     names.append(fam.names[i])
-        return None if best is None else (best, tuple(names))
+                    values.append(limit)
+        return None if best is None else (best, tuple(names), tuple(values))
 
     def scale_of_point(self, point: Sequence[Fraction]) -> Fraction:
         """The least rho with ``point`` inside box(rho) (every-parameter scaling)."""
