@@ -494,7 +494,7 @@ def check(
     --------
     >>> import robust
     >>> result = robust.check(robust.load_case("cases/thermal_pi_affine.toml"))
-    >>> result.verdict
+    >>> result.verdict.value
     'stable'
     """
     family = getattr(case_or_family, "family", case_or_family)

@@ -340,20 +340,33 @@ def ranking_picture(analysis: Analysis) -> Picture:
     given = [float(p.margin_given_others.lower) for p in params]
     open_alone = [p.margin_alone.upper is None for p in params]
     open_given = [p.margin_given_others.upper is None for p in params]
+    # a margin that ends where the model ends (a part's limit, a lost order, a factor at 0)
+    # is no stability headroom: its value is written with the reason, not as a plain number
+    ends = {"physical_limit": "limit", "degree_loss": "order lost", "denominator": "factor 0"}
+    def why(limit) -> str:
+        return ends.get(limit.kind.value, "") if limit.proven else "budget"
+
+    why_alone = [why(p.limit_alone) for p in params]
+    why_given = [why(p.limit_given_others) for p in params]
     finite = [v for v, o in zip(alone + given, open_alone + open_given, strict=True) if not o]
     top = max([*finite, 1.0]) * 1.25
     top = max(min(top, 10.0), 1.5)
     y = np.arange(len(params))[::-1].astype(float)
     height = 0.36
-    for values, opens, offset, style, label in (
-            (alone, open_alone, height / 2, {"facecolor": "#9a9a9a", "edgecolor": "black"},
+    for values, opens, whys, offset, style, label in (
+            (alone, open_alone, why_alone, height / 2, {"facecolor": "#9a9a9a", "edgecolor": "black"},
              "this tolerance alone (others at nominal)"),
-            (given, open_given, -height / 2, {"facecolor": "white", "edgecolor": "black", "hatch": "xxx"},
+            (given, open_given, why_given, -height / 2,
+             {"facecolor": "white", "edgecolor": "black", "hatch": "xxx"},
              "this tolerance, others over their full range")):
         shown = [min(v, top) for v in values]
         ax.barh(y + offset, shown, height=height * 0.95, linewidth=0.8, label=label, **style)
-        for yy, v, s, is_open in zip(y + offset, values, shown, opens, strict=True):
-            text = f"≥ {v:.4g}" if is_open else f"{v:.4g}"
+        for yy, v, s, is_open, why in zip(y + offset, values, shown, opens, whys, strict=True):
+            text = f"≥ {v:.4g}" if is_open or why == "budget" else f"{v:.4g}"
+            if why == "budget":
+                text += " (undecided beyond, within the work budget)"
+            elif why:
+                text += f" ({why}, not a crossing)"
             if v > top:
                 text += " (cut)"
             ax.text(s + top * 0.01, yy, text, va="center", ha="left", fontsize=8)
