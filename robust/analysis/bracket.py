@@ -8,12 +8,13 @@ every root left of Re(s) = -sigma): ``lower`` is proven, ``upper`` carries a ver
 from __future__ import annotations
 
 import math
+import sys
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
 
-from ..exact.numbers import format_fraction, short_between
+from ..exact.numbers import format_fraction, short_between, to_float
 from .outcomes import Verdict
 from .verdict import Witness
 
@@ -53,12 +54,16 @@ class Bracket:
 
 
 def float_down(x: Fraction) -> float:
-    f = float(x)
+    f = to_float(x)
+    if math.isinf(f):
+        return f if f < 0 else sys.float_info.max
     return math.nextafter(f, -math.inf) if Fraction(f) > x else f
 
 
 def float_up(x: Fraction) -> float:
-    f = float(x)
+    f = to_float(x)
+    if math.isinf(f):
+        return f if f > 0 else -sys.float_info.max
     return math.nextafter(f, math.inf) if Fraction(f) < x else f
 
 

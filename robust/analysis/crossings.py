@@ -17,7 +17,7 @@ import sympy as sp
 from sympy.polys.matrices import DomainMatrix
 
 from ..exact.hurwitz import hurwitz_matrix
-from ..exact.numbers import format_fraction, short_between
+from ..exact.numbers import decimal_text, format_fraction, short_between, to_float
 from ..exact.polynomials import MultiPoly, as_intervals
 from ..model.family import UncertainPolynomial
 from .scaling import Scaling
@@ -70,7 +70,7 @@ class RootBound:
     @staticmethod
     def rational(value: Fraction) -> RootBound:
         """A rational r*."""
-        return RootBound(value, value, format_fraction(value), f"{float(value):.15g}")
+        return RootBound(value, value, format_fraction(value), decimal_text(value))
 
 
 def first_positive_root(polys: Sequence[sp.Poly], cap: Fraction) -> RootBound | None:
@@ -99,22 +99,29 @@ def first_positive_root(polys: Sequence[sp.Poly], cap: Fraction) -> RootBound | 
     lo_f, hi_f, poly = best
     if lo_f == hi_f:
         return RootBound.rational(lo_f)
-    return RootBound(lo_f, hi_f, _root_text(poly, lo_f, hi_f), f"{float((lo_f + hi_f) / 2):.15g}")
+    return RootBound(lo_f, hi_f, _root_text(poly, lo_f, hi_f), decimal_text((lo_f + hi_f) / 2))
 
 
 def _root_text(poly: sp.Poly, lo: Fraction, hi: Fraction) -> str:
     """Exact text of the root of ``poly`` isolated in [lo, hi]: radicals up to degree 2,
     else "root of q(r) in [lo, hi]" with q the irreducible factor that has it."""
     low, high = sp.Rational(lo.numerator, lo.denominator), sp.Rational(hi.numerator, hi.denominator)
-    for factor, _ in poly.factor_list()[1]:
+    try:
+        factors = poly.factor_list()[1]
+    except OverflowError:  # sympy's factoring meets numbers beyond floats: name the root by its value
+        return f"root of {sp.sstr(poly.as_expr())} near {decimal_text((lo + hi) / 2)}"
+    for factor, _ in factors:
         if factor.count_roots(low, high) == 0:
             continue
         if factor.degree() <= 2:
-            for root in sp.roots(factor, filter="R"):
-                if low <= root <= high:
-                    return sp.sstr(sp.nsimplify(root))
-        return f"root of {sp.sstr(factor.as_expr())} near {float((lo + hi) / 2):.15g}"
-    return f"root near {float((lo + hi) / 2):.15g}"
+            try:
+                for root in sp.roots(factor, filter="R"):
+                    if low <= root <= high:
+                        return sp.sstr(sp.nsimplify(root))
+            except OverflowError:  # radicals of numbers beyond floats: the value names it
+                pass
+        return f"root of {sp.sstr(factor.as_expr())} near {decimal_text((lo + hi) / 2)}"
+    return f"root near {decimal_text((lo + hi) / 2)}"
 
 
 def substitute_expressions(poly: MultiPoly, values: Sequence[sp.Expr]) -> sp.Expr:
@@ -214,9 +221,9 @@ def ray_upper_bound(family: UncertainPolynomial, limit: Fraction, rays: int = 64
     from .search import batch_worst_angle
 
     k = len(family.names)
-    nominal = np.array([float(x) for x in family.nominal])
-    up = np.array([float(h - n) for h, n in zip(family.box.high, family.nominal, strict=True)])
-    down = np.array([float(n - lo) for lo, n in zip(family.box.low, family.nominal, strict=True)])
+    nominal = np.array([to_float(x) for x in family.nominal])
+    up = np.array([to_float(h - n) for h, n in zip(family.box.high, family.nominal, strict=True)])
+    down = np.array([to_float(n - lo) for lo, n in zip(family.box.low, family.nominal, strict=True)])
     free = [i for i in range(k) if up[i] > 0 or down[i] > 0]
     if not free:
         return None
@@ -229,7 +236,7 @@ def ray_upper_bound(family: UncertainPolynomial, limit: Fraction, rays: int = 64
     directions = np.zeros((len(signs), k))
     for j, i in enumerate(free):
         directions[:, i] = np.where(signs[:, j] > 0, up[i], -down[i])
-    top = float(limit)
+    top = to_float(limit)
     grid = np.concatenate([np.linspace(0, min(1.0, top), 41)[1:],
                            np.geomspace(1.0, top, 60)[1:] if top > 1 else np.array([])])
     first = np.full(len(directions), np.inf)

@@ -10,7 +10,7 @@ import time
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
-from ..exact.numbers import short_between
+from ..exact.numbers import short_between, to_float
 from ..exact.routh import routh_table
 from ..model.family import UncertainPolynomial, shifted_family
 from .bracket import Bracket, Work, bisect_margin, just_below
@@ -67,10 +67,19 @@ def _decay_upper(family: UncertainPolynomial, seed: int = 0):
     points += [_to_point(row, box) for row in t[:64]]
     best = None
     for point in points:
-        coeffs = [float(c) for c in family.coefficients_at(point)]
-        rate = -max(r.real for r in np.roots(coeffs))
+        exact = family.coefficients_at(point)
+        largest = max(abs(c) for c in exact)
+        coeffs = [to_float(c / largest) for c in exact]  # scaled: guidance in floats cannot overflow
+        if coeffs[0] == 0:
+            continue
+        with np.errstate(all="ignore"):
+            rate = -max(r.real for r in np.roots(coeffs))
+        if rate != rate:
+            continue
         if best is None or rate < best[0]:
             best = (rate, point)
+    if best is None:
+        return None
     rate, point = best
     if rate <= 0:
         return None

@@ -14,6 +14,7 @@ from fractions import Fraction
 
 import numpy as np
 
+from ..exact.numbers import to_float
 from ..exact.routh import is_hurwitz
 from ..model.family import Box, UncertainPolynomial
 
@@ -95,8 +96,8 @@ def search_witness(
         return None
     rng = np.random.default_rng(seed)
     k = len(box.names)
-    lo = np.array([float(a) for a in box.low])
-    width = np.array([float(b - a) for a, b in box.intervals])
+    lo = np.array([to_float(a) for a in box.low])
+    width = np.array([to_float(b - a) for a, b in box.intervals])
     t = rng.random((samples, k))
     t[:, width == 0] = 0.0
     scores = batch_worst_angle(_coefficients_many(family, lo + t * width))

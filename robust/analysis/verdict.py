@@ -31,7 +31,7 @@ from fractions import Fraction
 import numpy as np
 
 from ..exact.interval import IntervalPolynomial, KharitonovResult, KharitonovVertex, kharitonov_test
-from ..exact.numbers import format_fraction
+from ..exact.numbers import format_fraction, to_float
 from ..exact.polynomials import Bound, as_intervals
 from ..exact.routh import RootCounts, is_hurwitz, routh_table
 from ..model.family import Box, UncertainPolynomial
@@ -81,10 +81,16 @@ class Witness:
 
     def root_values(self) -> list[complex]:
         """The witness polynomial's roots as floats, for display only."""
-        coeffs = [float(c) for c in self.coefficients]
+        largest = max(abs(c) for c in self.coefficients) or 1
+        coeffs = [to_float(c / largest) for c in self.coefficients]  # scaled: no overflow
         while coeffs and coeffs[0] == 0:
             coeffs.pop(0)
-        return sorted((complex(r) for r in np.roots(coeffs)), key=lambda z: -z.real)
+        with np.errstate(all="ignore"):
+            try:
+                roots = np.roots(coeffs)
+            except np.linalg.LinAlgError:
+                return []
+        return sorted((complex(r) for r in roots), key=lambda z: -z.real)
 
     def as_dict(self) -> dict[str, object]:
         """JSON form (DESIGN.md section 5) with extras."""
@@ -270,8 +276,8 @@ def _split_index(family: UncertainPolynomial, box: Box, kh: KharitonovResult | N
     """The parameter to split: among those the failing Kharitonov vertex asks for both ends
     of their range (or whose direction is mixed) - the source of the overbound's
     conservatism - the one whose width most widens the coefficient intervals (relative)."""
-    center = [float(x) for x in box.center]
-    widths = [float(w) for w in box.widths()]
+    center = [to_float(x) for x in box.center]
+    widths = [to_float(w) for w in box.widths()]
     conflicted = set()
     if kh is not None and kh.failing and directions is not None:
         pattern = kh.family.pattern(kh.failing[0])
@@ -417,7 +423,7 @@ def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
 
 def worst_root_angle_many(family: UncertainPolynomial, points: Sequence[Sequence[Fraction]]) -> np.ndarray:
     """Float screening scores (positive: unstable) at many points; guidance only."""
-    array = np.array([[float(x) for x in p] for p in points])
+    array = np.array([[to_float(x) for x in p] for p in points])
     return batch_worst_angle(family.coefficients_float(array))
 
 

@@ -12,7 +12,9 @@ read back through their shortest ``repr``, which is the decimal the user typed.
 
 from __future__ import annotations
 
+import math
 import re
+from decimal import Context, Decimal
 from fractions import Fraction
 from numbers import Rational
 
@@ -28,7 +30,9 @@ __all__ = [
     "mpq",
     "mpz",
     "parse_number",
+    "decimal_text",
     "short_between",
+    "to_float",
     "to_fraction",
     "to_mpq",
 ]
@@ -150,3 +154,28 @@ def short_between(a: Fraction, b: Fraction) -> Fraction | None:
         if a <= x <= b:
             return x
     return None
+
+
+def to_float(value: object) -> float:
+    """The nearest float, never raising: beyond the float range it is +-inf (below it, 0).
+
+    For guidance and display only (a search, a screen, a rounded number in a sentence);
+    decisions never use it.
+    """
+    try:
+        return float(value)  # type: ignore[arg-type]
+    except OverflowError:
+        return math.inf if value > 0 else -math.inf  # type: ignore[operator]
+
+
+def decimal_text(value: Fraction, digits: int = 15) -> str:
+    """``value`` rounded to ``digits`` significant digits, as decimal text of any size
+    (``"1.5e+400"`` where a float would overflow)."""
+    context = Context(prec=digits, Emax=10**9, Emin=-(10**9))
+    number = context.divide(Decimal(value.numerator), Decimal(value.denominator))
+    if abs(number.adjusted()) < 16:
+        return f"{number:g}"
+    mantissa, _, exponent = f"{number:e}".partition("e")
+    if "." in mantissa:
+        mantissa = mantissa.rstrip("0").rstrip(".")
+    return f"{mantissa}e{exponent}"

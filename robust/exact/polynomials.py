@@ -20,7 +20,7 @@ from itertools import product
 
 import numpy as np
 
-from .numbers import from_mpq, mpq, to_mpq
+from .numbers import from_mpq, mpq, to_float, to_mpq
 
 __all__ = ["Bound", "MultiPoly", "interval_power"]
 
@@ -135,7 +135,7 @@ class MultiPoly:
         """Float value at one point (guidance only)."""
         total = 0.0
         for e, c in self.terms:
-            term = float(c)
+            term = to_float(c)
             for x, k in zip(point, e, strict=True):
                 if k:
                     term *= x**k
@@ -146,7 +146,7 @@ class MultiPoly:
         """Float values at many points (rows of ``points``): for screening, never for verdicts."""
         out = np.zeros(points.shape[0])
         for e, c in self.terms:
-            term = np.full(points.shape[0], float(c))
+            term = np.full(points.shape[0], to_float(c))
             for i, k in enumerate(e):
                 if k:
                     term = term * points[:, i] ** k

@@ -18,6 +18,7 @@ import numpy as np
 import sympy as sp
 
 from ..errors import InputError
+from ..exact.numbers import to_float
 from ..exact.polynomials import Bound, MultiPoly, as_intervals
 
 __all__ = ["Box", "UncertainPolynomial", "build_family", "classify", "shifted_family", "sign_over_box"]
@@ -142,7 +143,7 @@ class UncertainPolynomial:
         weights = np.zeros((len(self.coefficients), len(exps)))
         for k, c in enumerate(self.coefficients):
             for e, v in c.terms:
-                weights[k, index[e]] = float(v)
+                weights[k, index[e]] = to_float(v)
         object.__setattr__(self, "_float_form",
                            (np.array(exps, dtype=float).reshape(len(exps), -1), weights))
 
