@@ -15,10 +15,12 @@ from dataclasses import dataclass
 from fractions import Fraction
 
 from ..exact.numbers import format_fraction, short_between, to_float
-from .outcomes import Verdict
-from .verdict import Witness
+from ..model.family import Box, UncertainPolynomial
+from .outcomes import Verdict, untestable
+from .verdict import Witness, decide
 
-__all__ = ["Bracket", "Tester", "Work", "bisect_margin", "float_down", "float_up", "just_below"]
+__all__ = ["Bracket", "Tester", "Work", "bisect_margin", "float_down", "float_up", "just_below",
+           "scaled_tester"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -92,6 +94,23 @@ class Work:
         if time.perf_counter() >= self.deadline:
             self.clock_fired = True
         return self.clock_fired
+
+
+def scaled_tester(family: UncertainPolynomial, box_of: Callable[[Fraction], Box], work: Work,
+                  max_boxes: int) -> Tester:
+    """test(rho): the decision ladder over ``box_of(rho)`` with ``max_boxes`` boxes; a box that
+    must not be decided (the validity rule) is undecided. The clock is the work's safety stop."""
+
+    def test(rho: Fraction) -> tuple[Verdict, Witness | None]:
+        box = box_of(rho)
+        if untestable(family, box) is not None:
+            return Verdict.UNDECIDED, None
+        res = decide(family, box, max_seconds=max(work.deadline - time.perf_counter(), 0.01),
+                     max_boxes=max_boxes)
+        work.clock_fired |= res.safety_stop
+        return res.verdict, res.witness
+
+    return test
 
 
 def just_below(value: Fraction, rel_tol: Fraction) -> Fraction:

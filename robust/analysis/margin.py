@@ -33,14 +33,13 @@ from fractions import Fraction
 from ..exact.numbers import short_between
 from ..exact.routh import routh_table
 from ..model.family import UncertainPolynomial
-from .bracket import Bracket, Work, bisect_margin, float_down, float_up, just_below
+from .bracket import Bracket, Work, bisect_margin, float_down, float_up, just_below, scaled_tester
 from .crossings import DEFAULT_CAP, exact_interval_margin, ray_upper_bound, tightener
 from .decay import DecayResult, decay_rate
 from .limits import ScaleEnd, end_of_scaling
-from .outcomes import LimitKind, Outcome, Verdict, requirement_outcome, untestable
+from .outcomes import LimitKind, Outcome, Verdict, requirement_outcome
 from .requirements import DEFAULT_REQUIREMENT_BOXES, RequirementCheck, decide_requirement
 from .scaling import Scaling
-from .verdict import Witness, decide
 
 __all__ = ["DEFAULT_MARGIN_BOXES", "DEFAULT_MARGIN_TESTS", "MarginResult", "crossing_end", "margin"]
 
@@ -153,14 +152,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
     scaling = Scaling.everything(family)
     tol = Fraction(rel_tol if rel_tol is not None else (1e-9 if family.structure == "independent" else 1e-6))
 
-    def test(rho: Fraction) -> tuple[Verdict, Witness | None]:
-        box = scaling.box(rho)
-        if untestable(family, box) is not None:  # the validity rule; not met below the end
-            return Verdict.UNDECIDED, None
-        res = decide(family, box, max_seconds=max(work.deadline - time.perf_counter(), 0.01),
-                     max_boxes=max_boxes)
-        work.clock_fired |= res.safety_stop
-        return res.verdict, res.witness
+    test = scaled_tester(family, scaling.box, work, max_boxes)
 
     def done(bracket: Bracket, method: str, limit: ScaleEnd) -> MarginResult:
         direct = outcome = None

@@ -26,13 +26,13 @@ from fractions import Fraction
 from ..exact.numbers import short_between
 from ..model.family import UncertainPolynomial
 from ..model.graph import build_graph
-from .bracket import Bracket, Work, bisect_margin, float_down, just_below
+from .bracket import Bracket, Work, bisect_margin, float_down, just_below, scaled_tester
 from .crossings import DEFAULT_CAP, RootBound, path_margin
 from .limits import ScaleEnd, end_of_scaling
 from .margin import crossing_end
-from .outcomes import LimitKind, Verdict, untestable
+from .outcomes import LimitKind, Verdict
 from .scaling import Scaling
-from .verdict import Witness, decide
+from .verdict import decide
 
 __all__ = ["ParameterRank", "RankResult", "rank"]
 
@@ -140,14 +140,7 @@ def _given_others(family: UncertainPolynomial, i: int, robust_ok: bool | None, c
     scaling = Scaling.one(family, i, others_full=True)
     end = end_of_scaling(scaling, cap)
 
-    def test(rho: Fraction) -> tuple[Verdict, Witness | None]:
-        box = scaling.box(rho)
-        if untestable(family, box) is not None:  # the validity rule
-            return Verdict.UNDECIDED, None
-        res = decide(family, box, max_seconds=max(work.deadline - time.perf_counter(), 0.01),
-                     max_boxes=max_boxes)
-        work.clock_fired |= res.safety_stop
-        return res.verdict, res.witness
+    test = scaled_tester(family, scaling.box, work, max_boxes)
 
     work.tests += 1
     verdict0, w0 = test(Fraction(0))
