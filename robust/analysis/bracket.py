@@ -152,7 +152,9 @@ def bisect_margin(test: Tester, end: Fraction, end_testable: bool, rel_tol: Frac
                 work.undecided += 1
                 break
     while not work.spent():
-        high = upper if upper is not None else (stuck if stuck is not None else None)
+        # below the least undecided point, if any: that is where a proof can still be found
+        ends = [x for x in (upper, stuck) if x is not None]
+        high = min(ends) if ends else None
         if high is None or (high - lower) <= rel_tol * high:
             break
         # a short rational inside the middle half keeps the exact arithmetic small
