@@ -198,6 +198,12 @@ def rank(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float = 1
             end = ScaleEnd(LimitKind.CAP, (), cap, cap, None, "no tolerance")
             out.append(ParameterRank(name, fixed, end, fixed, end, acts, tol_text, None, None))
             continue
+        if time.perf_counter() >= deadline:  # the safety stop: the parts left are not ranked
+            clock = True
+            skipped = Bracket(Fraction(0), None, note="not computed: the wall-clock safety stop fired")
+            end = ScaleEnd(LimitKind.CAP, (), cap, cap, None, "not computed", proven=False)
+            out.append(ParameterRank(name, skipped, end, skipped, end, acts, tol_text, None, None))
+            continue
         alone, alone_end = _alone(family, i, cap, tol, max_boxes)
         work = Work(max_tests, deadline)
         given, given_end = _given_others(family, i, robust_ok, cap, tol, work, max_boxes)
