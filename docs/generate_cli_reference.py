@@ -57,7 +57,10 @@ NOTES: dict[str, dict[str, list[str]]] = {
             '`rows`: list of `{"power": k, "entries": [str, ...]}`, top row (power n) first; '
             'entries are exact rationals such as `"7/2"`, or expressions in `ε` after a zero '
             "leading entry",
-            "`sign_changes`: sign changes down the first column",
+            "`sign_changes`: sign changes down the first column (of the rows shown)",
+            "`omitted_rows`: rows left out at the bottom because their entries in `ε` outgrew "
+            "the display bound (0 for a complete table; the counts then come from the Cauchy "
+            "index, see docs/methods.md)",
             '`roots`: `{"open_right": n, "imaginary_axis": n, "open_left": n}`',
             "`special_rows`: the zero-leading-entry and zero-row events, with the auxiliary "
             "polynomial of a zero row",

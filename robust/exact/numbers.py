@@ -25,6 +25,7 @@ __all__ = [
     "divexact",
     "format_fraction",
     "from_mpq",
+    "gcd",
     "mpq",
     "mpz",
     "parse_number",
@@ -38,6 +39,8 @@ mpz = gmpy2.mpz
 mpq = gmpy2.mpq
 #: Exact division of GMP integers known to divide (Bareiss steps).
 divexact = gmpy2.divexact
+#: Greatest common divisor of GMP integers (non-negative).
+gcd = gmpy2.gcd
 
 
 def to_mpq(value: Fraction | int) -> object:

@@ -46,10 +46,8 @@ def _vertex_section(vertex: KharitonovVertex, degree: int) -> Section:
                              f"change(s); roots: {_roots_words(table.roots)}."), "note"))
     for special in table.special_rows:
         blocks.append(Paragraph(("Special row: " + special.describe() + ".",), "note"))
-    if table.counted_by_factors:
-        blocks.append(Paragraph(("The counts come from the factors of p = q·gcd(p(s), p(−s)), each "
-                                 "tabulated on its own (an ε row met roots symmetric about the origin).",),
-                                "note"))
+    if table.count_note:
+        blocks.append(Paragraph((table.count_note[0].upper() + table.count_note[1:] + ".",), "note"))
     return Section(f"{vertex.label}: {words}", tuple(blocks))
 
 

@@ -59,11 +59,10 @@ def render_table(table: RouthTable) -> str:
     for special in table.special_rows:
         lines.append("note: " + special.describe())
     signs = "".join("+" if s > 0 else "-" for s in table.first_column_signs)
-    lines.append(f"first-column signs: {signs}   sign changes: {table.sign_changes}")
-    if table.counted_by_factors:
-        lines.append("note: an ε row met roots symmetric about the origin, where the ε rule "
-                     "alone is unsound; the counts below come from p = q*g, "
-                     "g = gcd(p(s), p(-s)), each factor tabulated on its own")
+    shown = " (rows shown)" if table.omitted_rows else ""
+    lines.append(f"first-column signs{shown}: {signs}   sign changes: {table.sign_changes}")
+    if table.count_note:
+        lines.append("note: " + table.count_note)
     lines.append(roots_sentence(table))
     return "\n".join(lines)
 
