@@ -161,6 +161,25 @@ BAD_INPUTS = [
      + 'expression = "s + 1"\n', "parameters.1R", None, "name"),
     ("parameter_named_s", 'title = "t"\n[parameters.s]\nnominal = 1\ntolerance = 0\n' + POLY
      + 'expression = "s + 1"\n', "parameters.s", 2, "variable"),
+    # a controller whose denominator is zero once expanded: the loop would read as "stable"
+    ("identically_zero_denominator", HEAD + "[polynomial.loop]\n" + 'plant = "1/(s-R)"\n'
+     + 'controller = "(s+1)/((s+1)^2-s^2-2*s-1)"\n', "polynomial.loop.controller", 7,
+     "identically zero once expanded"),
+    ("identically_zero_negative_power", expression("s^2 + (R - R)^-1"), "polynomial.expression", 6,
+     "identically zero once expanded"),
+    ("expansion_over_the_work_limit", expression("(R+s+1)^60*(R+s+2)^60"), "polynomial.expression", 6,
+     "term products"),
+    ("formulas_too_long_together", HEAD + POLY + "coefficients = ["
+     + ", ".join([json.dumps("+".join(["R"] * 9999))] * 6) + "]\n", "polynomial.coefficients", 6,
+     "too long together"),
+    ("unicode_digit_in_formula", expression("R*s + \u0663"), "polynomial.expression", 6,
+     "unexpected character"),
+    ("unicode_digit_nominal", parameter('nominal = "\u0663"\ntolerance = "1%"'), "parameters.R.nominal", 3,
+     "not a number"),
+    ("multi_line_title", 'title = "two\\nlines"\n' + HEAD.split("\n", 1)[1] + POLY + 'expression = "R*s + 1"\n',
+     "title", 1, "several lines"),
+    ("exponent_of_thousands_of_digits", expression("s^" + "9" * 5000), "polynomial.expression", 6,
+     "exponent too large"),
 ]
 
 
@@ -231,6 +250,33 @@ def test_directory_exits_2(tmp_path):
     """A directory given as a case is bad input, named in one line."""
     result, seconds = run("check", str(tmp_path))
     assert_one_line_error(result, seconds, tmp_path, None, None, "directory")
+
+
+def test_byte_order_mark_is_accepted(tmp_path):
+    """A case file that starts with a UTF-8 byte-order mark reads like one without it."""
+    path = tmp_path / "bom.toml"
+    path.write_bytes(b"\xef\xbb\xbf" + expression("R*s + 1").encode())
+    result, _ = run("check", str(path), "--json")
+    assert result.exit_code == 0, result.stderr
+    assert json.loads(result.stdout)["verdict"] == "stable"  # R*s + 1 with R near 2: root -1/R
+
+
+@pytest.mark.skipif(not Path("/dev/zero").exists(), reason="no /dev/zero here")
+def test_device_is_refused_before_it_is_read():
+    """/dev/zero (endless) is refused as not a regular file, without reading it."""
+    result, seconds = run("check", "/dev/zero")
+    assert_one_line_error(result, seconds, "/dev/zero", None, None, "not a regular file")
+
+
+def test_oversized_file_is_refused_before_it_is_read(tmp_path):
+    """A file over the size limit is refused from its size alone (a sparse file: no data)."""
+    from robust.model.case import MAX_FILE
+
+    path = tmp_path / "huge.toml"
+    with open(path, "wb") as handle:
+        handle.truncate(MAX_FILE + 1)
+    result, seconds = run("check", str(path))
+    assert_one_line_error(result, seconds, path, None, None, "file too large")
 
 
 def test_non_utf8_file_exits_2(tmp_path):

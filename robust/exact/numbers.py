@@ -26,6 +26,7 @@ __all__ = [
     "format_fraction",
     "from_mpq",
     "gcd",
+    "integer_text",
     "mpq",
     "mpz",
     "parse_number",
@@ -66,7 +67,8 @@ ENGINEERING_SUFFIXES: dict[str, Fraction] = {
     "G": Fraction(10**9),
 }
 
-_NUMBER = re.compile(r"[+-]?(?:\d+(?:_\d+)*(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
+# ASCII digits only: other digits (an Arabic-Indic three) are not numbers here
+_NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:_[0-9]+)*(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?")
 _MAX_EXPONENT = 400  # decimal exponents beyond this are typos, not component values
 
 
@@ -109,10 +111,25 @@ def parse_number(text: str, what: str = "number", suffixes: bool = True) -> Frac
     if not match:
         raise InputError(what, "not a number", expected, text)
     mantissa, _, exponent = raw.replace("_", "").lower().partition("e")
-    if exponent and abs(int(exponent)) > _MAX_EXPONENT:
+    digits = exponent.lstrip("+-").lstrip("0")
+    if len(digits) > 3 or (digits and int(digits) > _MAX_EXPONENT):
         raise InputError(what, "decimal exponent out of range", f"|exponent| <= {_MAX_EXPONENT}", text)
-    value = Fraction(mantissa) * (Fraction(10) ** int(exponent or 0))
+    value = _decimal(mantissa) * (Fraction(10) ** int(exponent or 0))
     return value * scale
+
+
+def _decimal(text: str) -> Fraction:
+    """The exact value of a decimal such as ``-12.50`` of any length (GMP reads the digits:
+    Python's own int() refuses more than 4,300 of them)."""
+    sign = -1 if text.startswith("-") else 1
+    whole, _, fraction = text.lstrip("+-").partition(".")
+    digits = (whole + fraction).lstrip("0") or "0"
+    return Fraction(sign * int(mpz(digits)), 10 ** len(fraction))
+
+
+def integer_text(value: int) -> str:
+    """Decimal text of an integer of any size (Python's str() refuses over 4,300 digits)."""
+    return str(value) if -(10**18) < value < 10**18 else mpz(value).digits()
 
 
 def to_fraction(value: object, what: str = "number") -> Fraction:
@@ -139,8 +156,9 @@ def to_fraction(value: object, what: str = "number") -> Fraction:
 
 
 def format_fraction(value: Fraction) -> str:
-    """Exact text of a rational: ``"3"``, ``"-7/20"``."""
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
+    """Exact text of a rational: ``"3"``, ``"-7/20"`` (of any size)."""
+    top = integer_text(value.numerator)
+    return top if value.denominator == 1 else f"{top}/{integer_text(value.denominator)}"
 
 
 def short_between(a: Fraction, b: Fraction) -> Fraction | None:
