@@ -12,6 +12,7 @@ read back through their shortest ``repr``, which is the decimal the user typed.
 
 from __future__ import annotations
 
+import math
 import re
 from fractions import Fraction
 from numbers import Rational
@@ -22,6 +23,7 @@ from ..errors import InputError
 
 __all__ = [
     "ENGINEERING_SUFFIXES",
+    "binary_exponent",
     "divexact",
     "format_fraction",
     "from_mpq",
@@ -31,6 +33,7 @@ __all__ = [
     "mpz",
     "parse_number",
     "short_between",
+    "to_float",
     "to_fraction",
     "to_mpq",
 ]
@@ -153,6 +156,25 @@ def to_fraction(value: object, what: str = "number") -> Fraction:
     if isinstance(value, str):
         return parse_number(value, what)
     raise InputError(what, f"a {type(value).__name__} is not a number", "a number", value)
+
+
+def to_float(value: Fraction | int) -> float:
+    """The nearest float, or +-inf beyond the float range (0.0 or a subnormal below it).
+
+    Never raises: for display and float guidance only, never for a decision.
+    """
+    try:
+        return float(value)
+    except OverflowError:
+        return math.inf if value > 0 else -math.inf
+
+
+def binary_exponent(value) -> int:
+    """e with 2^(e-1) < |value| < 2^(e+1) for a non-zero rational (0 for zero): the scale of a
+    number of any size, exactly."""
+    if not value:
+        return 0
+    return int(abs(value.numerator)).bit_length() - int(value.denominator).bit_length()
 
 
 def format_fraction(value: Fraction) -> str:
