@@ -17,6 +17,7 @@ import click
 
 from ._version import __version__
 from .errors import RobustError
+from .exact.numbers import approx_text, percent_text
 from .exact.routh import RouthTable
 from .model.forms import routh_table
 from .render.text import render_table
@@ -96,7 +97,7 @@ def _progress_printer(label: str):
         if seconds < 1.0:
             return
         shown["any"] = True
-        click.echo(f"\r{label}: {float(proven):6.1%} of the box proven, {boxes} boxes, "
+        click.echo(f"\r{label}: {percent_text(proven, 1):>6} of the box proven, {boxes} boxes, "
                    f"{seconds:5.1f} s", err=True, nl=False)
 
     def finish() -> None:
@@ -130,10 +131,10 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
     Exit code 0: robustly stable (and requirements met); 1: unstable, undecided or a
     requirement failed; 2: bad input.
     """
-    from .model.case import load_case
     from .analysis.requirements import check_requirements
-    from .render.text import render_check, render_requirements
     from .analysis.verdict import check
+    from .model.case import load_case
+    from .render.text import render_check, render_requirements
 
     loaded = load_case(case)
     report, finish = _progress_printer("check")
@@ -162,8 +163,8 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
     """Show which parameter drives which coefficient, in which direction, and the bounds."""
     from pathlib import Path
 
-    from .model.case import load_case
     from .errors import InputError
+    from .model.case import load_case
     from .model.graph import build_graph, write_graphml
     from .render.text import render_trace, trace_data
 
@@ -198,9 +199,9 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
 
     Exit code 1 when a requirement of the case is not met.
     """
-    from .model.case import load_case
-    from .exact.numbers import to_fraction
     from .analysis.margin import margin
+    from .exact.numbers import to_fraction
+    from .model.case import load_case
     from .render.text import render_margin
 
     loaded = load_case(case)
@@ -230,8 +231,8 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
 @_guarded
 def rank_command(case: str, max_seconds: float, as_json: bool) -> None:
     """Rank the parameters, most critical first, with their margins."""
-    from .model.case import load_case
     from .analysis.rank import rank
+    from .model.case import load_case
     from .render.text import render_rank
 
     loaded = load_case(case)
@@ -252,8 +253,8 @@ def rank_command(case: str, max_seconds: float, as_json: bool) -> None:
 @_guarded
 def yield_command(case: str, draws: int, seed: int, as_json: bool) -> None:
     """Monte Carlo yield: the fraction of random builds that are stable."""
-    from .model.case import load_case
     from .analysis.montecarlo import estimate_yield
+    from .model.case import load_case
     from .render.text import render_yield
 
     loaded = load_case(case)
@@ -285,8 +286,8 @@ def _summary_lines(analysis, files) -> list[str]:
              f"Verdict: {check.verdict.upper()}  ({check.method_text})"]
 
     def bracket(b) -> str:
-        upper = "no failure found up to the cap" if b.upper is None else f"{float(b.upper):.6g}"
-        return f"[{float(b.lower):.6g}, {upper}]"
+        upper = "no failure found up to the cap" if b.upper is None else approx_text(b.upper, 6)
+        return f"[{approx_text(b.lower, 6)}, {upper}]"
 
     lines.append(f"Robust margin rho*: {bracket(m.margin)}")
     if m.decay is not None:
@@ -294,7 +295,7 @@ def _summary_lines(analysis, files) -> list[str]:
     if analysis.rank.parameters:
         top = analysis.rank.parameters[0]
         lines.append(f"Most critical parameter: {top.name} "
-                     f"(margin alone {float(top.margin_alone.lower):.4g})")
+                     f"(margin alone {approx_text(top.margin_alone.lower, 4)})")
     y = analysis.yield_result
     lines.append(f"Yield: {y.fraction:.2%} of {y.draws} random builds stable")
     lines.append(outcome(analysis)[1])
@@ -319,8 +320,8 @@ def report_command(case: str, directory: str, max_seconds: float, draws: int, se
 
     Exit code 0 when the report was written, whatever it concludes; 2: bad input.
     """
-    from .model.case import load_case
     from .analysis.signoff import analyse
+    from .model.case import load_case
     from .render import check_directory, result_data, write_report
 
     check_directory(directory)
@@ -347,8 +348,8 @@ def demo_command(directory: str) -> None:
     from importlib import resources
     from pathlib import Path
 
-    from .model.case import load_case
     from .analysis.signoff import analyse
+    from .model.case import load_case
     from .render import check_directory, write_report
 
     source = resources.files("robust") / "data" / "demo.toml"

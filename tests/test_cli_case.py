@@ -429,3 +429,33 @@ def test_trace_graphml_to_a_directory_is_refused(tmp_path):
     """--graphml naming a directory is a usage error (exit 2)."""
     result, _ = run("trace", str(CASES_DIR / "thermal_pi_affine.toml"), "--graphml", str(tmp_path))
     assert result.exit_code == 2
+
+
+# -- numbers of every documented size --------------------------------------------------------------
+
+HUGE_LITERAL = "7" * 5000  # beyond Python's 4,300-digit integer-string limit
+
+
+@pytest.mark.parametrize("nominal", ["1e400", "1e-400", HUGE_LITERAL], ids=["1e400", "1e-400", "5000-digits"])
+def test_numbers_beyond_the_float_range_work_in_check_trace_and_yield(tmp_path, nominal):
+    """Nominals of 1e400, 1e-400 and 5000 digits (docs allow exponents to 400, literals of any
+    length) run through check, trace and yield without a traceback; R*s^2 + K*s + R is stable
+    for R > 0 and K > 0 (degree 2: all coefficients positive; Gantmacher 1959, from memory)."""
+    path = tmp_path / "scale.toml"
+    path.write_text('title = "extreme scale"\n[parameters.R]\n'
+                    f'nominal = "{nominal}"\ntolerance = "10%"\n'
+                    '[parameters.K]\nnominal = "2"\ntolerance = "5%"\n'
+                    '[polynomial]\nexpression = "R*s^2 + K*s + R"\n', encoding="utf-8")
+    for args in (["check", "--json"], ["trace"], ["trace", "--json"], ["yield", "-n", "300", "--json"]):
+        result, _ = run(args[0], str(path), *args[1:])
+        assert result.exit_code == 0, (args, result.stderr)
+        assert "Traceback" not in result.stderr + result.stdout
+        if "--json" in args:
+            data = json.loads(result.stdout)  # valid JSON: no Infinity or NaN tokens
+            assert "Infinity" not in result.stdout and "NaN" not in result.stdout
+            if args[0] == "yield":
+                assert data["stable"] == 300
+            if args[0] == "check":
+                assert data["verdict"] == "stable"
+    shown, _ = run("trace", str(path))
+    assert "inf" not in shown.stdout  # the ranges are written as numbers, e.g. 9e+399

@@ -12,8 +12,10 @@ read back through their shortest ``repr``, which is the decimal the user typed.
 
 from __future__ import annotations
 
+import decimal
 import math
 import re
+import sys
 from fractions import Fraction
 from numbers import Rational
 
@@ -23,6 +25,7 @@ from ..errors import InputError
 
 __all__ = [
     "ENGINEERING_SUFFIXES",
+    "approx_text",
     "binary_exponent",
     "divexact",
     "format_fraction",
@@ -32,6 +35,7 @@ __all__ = [
     "mpq",
     "mpz",
     "parse_number",
+    "percent_text",
     "short_between",
     "to_float",
     "to_fraction",
@@ -167,6 +171,29 @@ def to_float(value: Fraction | int) -> float:
         return float(value)
     except OverflowError:
         return math.inf if value > 0 else -math.inf
+
+
+def approx_text(value, digits: int = 6) -> str:
+    """``value`` with ``digits`` significant digits, as ``f"{x:.{digits}g}"`` would write it,
+    for an exact number of any size ("1e+400" where a float would overflow)."""
+    if value is None:
+        return "-"
+    f = value if isinstance(value, float) else to_float(value)
+    if isinstance(value, float) or (math.isfinite(f) and (f == 0) == (value == 0)
+                                    and (f == 0 or abs(f) >= sys.float_info.min)):
+        return f"{f:.{digits}g}"
+    with decimal.localcontext() as context:
+        context.prec = digits
+        number = decimal.Decimal(int(value.numerator)) / decimal.Decimal(int(value.denominator))
+    return f"{number.normalize():.{digits}g}"  # 9.9e+399, not 9.90000e+399, as floats print
+
+
+def percent_text(value, digits: int = 2) -> str:
+    """``value`` as a percentage with ``digits`` decimals, as ``f"{x:.{digits}%}"``, any size."""
+    f = value if isinstance(value, float) else to_float(value)
+    if math.isfinite(f):
+        return f"{f:.{digits}%}"
+    return approx_text(value * 100, 6) + "%"
 
 
 def binary_exponent(value) -> int:

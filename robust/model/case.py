@@ -21,7 +21,7 @@ import sympy as sp
 
 from ..errors import CaseError, FormulaError, InputError
 from ..exact import sparse
-from ..exact.numbers import parse_number, to_fraction
+from ..exact.numbers import approx_text, parse_number, to_fraction
 from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, new_work, parse_formula
 from .family import Box, UncertainPolynomial, build_family
 from .forms import coefficients_polynomial, expression_polynomial, loop_polynomial
@@ -203,7 +203,7 @@ def _parameter(reader: _Reader, name: str, table: object) -> Parameter:
                    if "nominal" in table else (low + high) / 2)
         if not low <= nominal <= high:
             raise reader.error(section, "nominal", "the nominal lies outside the range",
-                               f"a value in [{float(low):g}, {float(high):g}]", table["nominal"])
+                               f"a value in [{approx_text(low)}, {approx_text(high)}]", table["nominal"])
         tol_text = "range"
     else:
         if "nominal" not in table:

@@ -18,8 +18,9 @@ from fractions import Fraction
 
 import networkx as nx
 
-from .family import Box, UncertainPolynomial
 from ..exact.interval import KHARITONOV_PATTERNS, IntervalPolynomial
+from ..exact.numbers import format_fraction
+from .family import Box, UncertainPolynomial
 
 __all__ = ["Realisation", "build_graph", "drivers", "realise_vertex", "write_graphml"]
 
@@ -51,12 +52,13 @@ def build_graph(family: UncertainPolynomial, box: Box | None = None,
     bounds = family.bounds(box)
     for name, lo, hi in zip(family.names, box.low, box.high, strict=True):
         graph.add_node(("parameter", name), kind="parameter", name=name,
-                       low=str(lo), high=str(hi))
+                       low=format_fraction(lo), high=format_fraction(hi))
     for k, coeff in enumerate(family.coefficients):
         power = n - k
         b = bounds[k]
         graph.add_node(("coefficient", power), kind="coefficient", power=power,
-                       formula=coeff.to_text(family.names), low=str(b.low), high=str(b.high),
+                       formula=coeff.to_text(family.names), low=format_fraction(b.low),
+                       high=format_fraction(b.high),
                        exact=b.exact)
         used = coeff.variables()
         for i, name in enumerate(family.names):

@@ -4,11 +4,12 @@ left of an undecided one."""
 
 from __future__ import annotations
 
-from ..exact.interval import KharitonovVertex
-from ..exact.routh import RouthTable
 from ..analysis.verdict import CheckResult, Witness
+from ..exact.interval import KharitonovVertex
+from ..exact.numbers import approx_text, percent_text
+from ..exact.routh import RouthTable
 from .blocks import Cell, Code, ItemList, Paragraph, Section, Table
-from .fmt import entry_cell, exact_cell, short
+from .fmt import entry_cell, exact_cell
 
 __all__ = ["certificate_section", "undecided_blocks", "witness_section"]
 
@@ -88,8 +89,8 @@ def witness_section(case, witness: Witness, title: str = "Witness: a parameter s
     for name, value in witness.parameters.items():
         p = case.parameter(name)
         rows.append((Cell((name,), mono=True), exact_cell(value),
-                     Cell((short(float(value), 8),), numeric=True),
-                     Cell((f"{short(float(p.low))} … {short(float(p.high))}",), numeric=True),
+                     Cell((approx_text(value, 8),), numeric=True),
+                     Cell((f"{approx_text(p.low)} … {approx_text(p.high)}",), numeric=True),
                      Cell((p.unit,))))
     table = Table(("parameter", "exact value", "value", "range", "unit"), tuple(rows))
     values = witness.root_values()
@@ -107,11 +108,11 @@ def witness_section(case, witness: Witness, title: str = "Witness: a parameter s
 
 def undecided_blocks(result: CheckResult) -> list:
     """What an undecided check leaves open."""
-    blocks: list = [Paragraph((f"Unresolved: {float(result.unresolved):.3%} of the box volume is "
+    blocks: list = [Paragraph((f"Unresolved: {percent_text(result.unresolved, 3)} of the box volume is "
                                "neither proven stable nor refuted within the budget.",))]
     if result.largest_unproven is not None:
         box = result.largest_unproven
-        parts = ", ".join(f"{n} in [{short(float(a))}, {short(float(b))}]"
+        parts = ", ".join(f"{n} in [{approx_text(a)}, {approx_text(b)}]"
                           for n, (a, b) in zip(box.names, box.intervals, strict=True))
         blocks.append(Paragraph(("Largest unproven sub-box: " + parts + ".",)))
     blocks.append(Paragraph(("A larger --max-seconds budget may decide it.",), "note"))

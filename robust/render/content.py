@@ -10,8 +10,9 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Any
 
-from ..model.graph import build_graph
 from ..analysis.signoff import Analysis
+from ..exact.numbers import approx_text, percent_text
+from ..model.graph import build_graph
 from .blocks import (
     Badge,
     Cell,
@@ -26,7 +27,7 @@ from .blocks import (
     Table,
 )
 from .certificate import certificate_section, undecided_blocks, witness_section
-from .fmt import bound_text, short
+from .fmt import bound_text
 
 __all__ = ["CAUTIONS", "JOB_LINE", "build_document", "outcome"]
 
@@ -124,8 +125,8 @@ def _header(analysis: Analysis) -> Section:
 def _parameters(analysis: Analysis) -> Section:
     rows = []
     for p in analysis.case.parameters:
-        rows.append((Cell((p.name,), mono=True), Cell((short(float(p.nominal)),), numeric=True),
-                     Cell((f"{short(float(p.low))} … {short(float(p.high))}",), numeric=True),
+        rows.append((Cell((p.name,), mono=True), Cell((approx_text(p.nominal),), numeric=True),
+                     Cell((f"{approx_text(p.low)} … {approx_text(p.high)}",), numeric=True),
                      Cell((p.tolerance,)), Cell((p.unit,)), Cell((p.distribution,)), Cell((p.note,))))
     table = Table(("name", "nominal", "range", "tolerance", "unit", "distribution", "note"), tuple(rows))
     return Section("Parameters", (table, Paragraph(
@@ -146,7 +147,7 @@ def _polynomial(analysis: Analysis) -> Section:
         deps = [f"{param[1]} ({graph.edges[param, ('coefficient', power)]['direction']})"
                 for param in graph.predecessors(("coefficient", power))]
         rows.append((Cell((f"a{power}",), mono=True), Cell((formula,), mono=True),
-                     Cell((f"{short(float(b.low))} … {short(float(b.high))}",), numeric=True),
+                     Cell((f"{approx_text(b.low)} … {approx_text(b.high)}",), numeric=True),
                      Cell(("exact" if b.exact else "outer",)), Cell((", ".join(deps) or "constant",))))
     blocks: list = [
         Paragraph((f"As written in the case file (variable {case.variable}):",)),
@@ -214,7 +215,7 @@ def _margins(analysis: Analysis) -> Section:
             exact = f"{exact} = {bracket.decimal}" if len(exact) <= 60 else f"≈ {bracket.decimal}"
         if name in requirements:
             required, from_bracket, direct = requirements[name]
-            asked = Cell((f"≥ {short(float(required))}",), numeric=True)
+            asked = Cell((f"≥ {approx_text(required)}",), numeric=True)
             verdict = Cell((_badge(_combined(from_bracket, direct)),))
         else:
             asked, verdict = Cell(("none",)), Cell(("-",))
@@ -233,11 +234,11 @@ def _margins(analysis: Analysis) -> Section:
                                "rounded outwards.",), "note")]
     low = m.margin.lower
     if m.margin.upper is None:
-        text = f"Stable with every tolerance scaled by at least {float(low):.6g}."
+        text = f"Stable with every tolerance scaled by at least {approx_text(low, 6)}."
     elif low >= 1:
-        text = f"Headroom: every tolerance can grow by {float(low - 1):.2%} and the loop stays stable."
+        text = f"Headroom: every tolerance can grow by {percent_text(low - 1, 2)} and the loop stays stable."
     else:
-        text = (f"The tolerances must shrink to {float(low):.2%} of their width about nominal "
+        text = (f"The tolerances must shrink to {percent_text(low, 2)} of their width about nominal "
                 "for the loop to be stable over the box.")
     items: list = [(text,), (f"Method: {m.method}.",)]
     if m.margin.note:
@@ -249,11 +250,11 @@ def _margins(analysis: Analysis) -> Section:
         if m.decay.bracket.note:
             items.append((f"Decay-rate note: {m.decay.bracket.note}.",))
     if m.margin.witness is not None:
-        pts = ", ".join(f"{n} = {float(v):.6g}" for n, v in m.margin.witness.parameters.items())
+        pts = ", ".join(f"{n} = {approx_text(v, 6)}" for n, v in m.margin.witness.parameters.items())
         items.append(("Witness just beyond the margin: " + pts + ".",))
     for r in analysis.requirements:
-        what = {"margin": f"stable over the box with every tolerance scaled by {float(r.required):g}",
-                "decay_rate": f"every root left of Re s = −{float(r.required):g} over the box"}[r.name]
+        what = {"margin": f"stable over the box with every tolerance scaled by {approx_text(r.required)}",
+                "decay_rate": f"every root left of Re s = −{approx_text(r.required)} over the box"}[r.name]
         items.append((f"Decided directly: {what}: ", _badge(r.passed)))
     if not analysis.requirements and requirements and analysis.check.verdict != "stable":
         items.append(("Requirements were not decided directly because the design is not robustly "
@@ -281,7 +282,7 @@ def _ranking(analysis: Analysis) -> Section:
                  Cell((_rank_bracket(p.margin_given_others),), numeric=True), Cell((acts,))]
         if failing:
             if p.restores:
-                cells.append(Cell((f"scale to ≤ {float(p.tightened or 0):.4g}",)))
+                cells.append(Cell((f"scale to ≤ {approx_text(p.tightened or 0, 4)}",)))
             elif p.restores is False:
                 cells.append(Cell(("does not help alone",)))
             else:

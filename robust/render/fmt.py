@@ -6,7 +6,7 @@ import math
 from decimal import ROUND_CEILING, ROUND_FLOOR, Decimal, localcontext
 from fractions import Fraction
 
-from ..exact.numbers import format_fraction
+from ..exact.numbers import approx_text, format_fraction
 from ..exact.routh import Entry, format_entry
 from .blocks import Cell
 
@@ -41,7 +41,7 @@ def exact_cell(value: Fraction, mono: bool = True) -> Cell:
     text = format_fraction(value)
     if len(text) <= LONG:
         return Cell((text,), mono=mono, numeric=True)
-    return Cell(("≈" + short(float(value), 7),), full=text, mono=mono, numeric=True)
+    return Cell(("≈" + approx_text(value, 7),), full=text, mono=mono, numeric=True)
 
 
 def entry_cell(entry: Entry) -> Cell:

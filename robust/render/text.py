@@ -2,9 +2,10 @@
 
 from __future__ import annotations
 
+import math
 from fractions import Fraction
 
-from ..exact.numbers import format_fraction
+from ..exact.numbers import approx_text, format_fraction, percent_text, to_float
 from ..exact.routh import RouthTable, format_entry
 
 __all__ = ["render_table", "roots_sentence"]
@@ -67,11 +68,16 @@ def render_table(table: RouthTable) -> str:
     return "\n".join(lines)
 
 
+def _finite_or_none(x: float) -> float | None:
+    """A float for JSON, or None beyond the float range (JSON has no infinity)."""
+    return x if math.isfinite(x) else None
+
+
 def _fmt(value: Fraction) -> str:
     """Exact value, with a float beside it when the fraction is not short."""
     text = format_fraction(value)
     if len(text) > 12 or value.denominator != 1:
-        return f"{float(value):.6g}" + (f" (= {text})" if len(text) <= 24 else "")
+        return approx_text(value, 6) + (f" (= {text})" if len(text) <= 24 else "")
     return text
 
 
@@ -101,7 +107,8 @@ def render_check(case, result) -> str:
         what = {"degree": "the leading coefficient's range contains zero",
                 "sign": "a coefficient's range reaches zero or changes sign",
                 "vertex": "Kharitonov polynomial(s) " + ", ".join(kh.failing) + " not Hurwitz"}
-        lines.append(f"Interval overbound over the whole box: inconclusive ({what.get(kh.reason, kh.reason)})")
+        lines.append("Interval overbound over the whole box: inconclusive "
+                     f"({what.get(kh.reason, kh.reason)})")
     for v in result.vertex_tables:
         if v.table is None:
             continue
@@ -119,14 +126,15 @@ def render_check(case, result) -> str:
         for name, value in w.parameters.items():
             p = case.parameter(name)
             unit = f" {p.unit}" if p.unit else ""
-            lines.append(f"  {name} = {_fmt(value)}{unit}   [range {float(p.low):.6g} .. {float(p.high):.6g}]")
+            lines.append(f"  {name} = {_fmt(value)}{unit}   "
+                         f"[range {approx_text(p.low, 6)} .. {approx_text(p.high, 6)}]")
         lines.append(f"  roots: {_roots_line(w.roots)}")
         shown = ", ".join(f"{z.real:.4g}{z.imag:+.4g}j" for z in w.root_values()[:6])
         lines.append(f"  root values (floats, for display): {shown}")
     if result.verdict == "undecided":
-        lines.append(f"Unresolved: {float(result.unresolved):.3%} of the box volume")
+        lines.append(f"Unresolved: {percent_text(result.unresolved, 3)} of the box volume")
         if result.largest_unproven is not None:
-            parts = ", ".join(f"{n} in [{float(a):.6g}, {float(b):.6g}]"
+            parts = ", ".join(f"{n} in [{approx_text(a, 6)}, {approx_text(b, 6)}]"
                               for n, (a, b) in zip(result.largest_unproven.names,
                                                    result.largest_unproven.intervals, strict=True))
             lines.append(f"Largest unproven sub-box: {parts}")
@@ -136,6 +144,11 @@ def render_check(case, result) -> str:
 
 def trace_data(case, graph) -> dict:
     """JSON form of ``robust trace``."""
+    return _trace(case, graph)[0]
+
+
+def _trace(case, graph) -> tuple[dict, tuple]:
+    """The JSON form and the exact coefficient bounds it was made from."""
     fam = case.family
     bounds = fam.bounds()
     coefficients = []
@@ -146,7 +159,8 @@ def trace_data(case, graph) -> dict:
             deps[param[1]] = graph.edges[param, ("coefficient", power)]["direction"]
         coefficients.append({"power": power, "formula": coeff.to_text(fam.names),
                              "low": format_fraction(b.low), "high": format_fraction(b.high),
-                             "low_float": float(b.low), "high_float": float(b.high),
+                             "low_float": _finite_or_none(to_float(b.low)),
+                             "high_float": _finite_or_none(to_float(b.high)),
                              "bound": "exact" if b.exact else "outer", "parameters": deps})
     vertices = {}
     for node in graph.nodes:
@@ -154,19 +168,20 @@ def trace_data(case, graph) -> dict:
             from ..model.graph import drivers
 
             vertices[node[1]] = {name: dirs for name, dirs in drivers(graph, node[1]).items()}
-    return {"family_class": fam.kind, "degree": fam.degree, "parameters": list(fam.names),
-            "coefficients": coefficients, "vertices": vertices}
+    return ({"family_class": fam.kind, "degree": fam.degree, "parameters": list(fam.names),
+             "coefficients": coefficients, "vertices": vertices}, bounds)
 
 
 def render_trace(case, graph) -> str:
     """Parameter -> coefficient dependencies with directions, and the coefficient bounds."""
-    data = trace_data(case, graph)
+    data, bounds = _trace(case, graph)
     lines = [f"Case: {case.title}   [{case.path}]",
              f"Family: degree {data['degree']}, {data['family_class']} dependence", ""]
-    for c in data["coefficients"]:
+    for c, b in zip(data["coefficients"], bounds, strict=True):
         deps = ", ".join(f"{n} ({d})" for n, d in c["parameters"].items()) or "constant"
         lines.append(f"a{c['power']} (s^{c['power']}) = {c['formula']}")
-        lines.append(f"    range [{c['low_float']:.6g}, {c['high_float']:.6g}] ({c['bound']}); driven by: {deps}")
+        lines.append(f"    range [{approx_text(b.low)}, {approx_text(b.high)}] ({c['bound']}); "
+                     f"driven by: {deps}")
     lines.append("")
     lines.append("Directions: + the coefficient grows with the parameter over the whole box, "
                  "- it falls, mixed: both.")
@@ -174,8 +189,8 @@ def render_trace(case, graph) -> str:
 
 
 def _bracket_text(b) -> str:
-    upper = "no witness up to the cap" if b.upper is None else f"{float(b.upper):.9g}"
-    text = f"[{float(b.lower):.9g}, {upper}]"
+    upper = "no witness up to the cap" if b.upper is None else approx_text(b.upper, 9)
+    text = f"[{approx_text(b.lower, 9)}, {upper}]"
     if b.exact:
         text += f"   exact: {b.exact}" + (f" = {b.decimal}" if b.decimal else "")
     if b.note:
@@ -194,24 +209,27 @@ def render_margin(case, result) -> str:
              f"Robust margin rho* (scale of every tolerance about nominal): {_bracket_text(m)}",
              f"  method: {result.method}"]
     if m.upper is None:
-        lines.append(f"  stable with every tolerance scaled by at least {float(m.lower):.6g}")
+        lines.append(f"  stable with every tolerance scaled by at least {approx_text(m.lower, 6)}")
     elif m.lower >= 1:
-        lines.append(f"  the design passes with headroom: tolerances can grow by {float(m.lower - 1):.3%}")
+        lines.append("  the design passes with headroom: tolerances can grow by "
+                     + percent_text(m.lower - 1, 3))
     else:
-        lines.append(f"  the design fails: tolerances must shrink to {float(m.lower):.3%} of their width")
+        lines.append(f"  the design fails: tolerances must shrink to {percent_text(m.lower, 3)} "
+                     "of their width")
     if m.witness is not None:
-        pts = ", ".join(f"{n} = {float(v):.6g}" for n, v in m.witness.parameters.items())
+        pts = ", ".join(f"{n} = {approx_text(v, 6)}" for n, v in m.witness.parameters.items())
         lines.append(f"  witness just beyond the margin: {pts}")
     if result.requirement is not None:
-        lines.append(f"Requirement margin >= {float(result.requirement):g}: {_pass_text(result.passed)}")
+        lines.append(f"Requirement margin >= {approx_text(result.requirement)}: {_pass_text(result.passed)}")
     if result.decay is not None:
         d = result.decay
         lines.append(f"Decay-rate margin sigma* (every root has Re(s) < -sigma): {_bracket_text(d.bracket)}")
         settle = d.settling_time()
         if settle is not None:
-            lines.append(f"  worst-case 2 % settling time about 4/sigma = {settle:.4g} s (common rule of thumb)")
+            lines.append(f"  worst-case 2 % settling time about 4/sigma = {settle:.4g} s "
+                         "(common rule of thumb)")
         if d.requirement is not None:
-            lines.append(f"Requirement decay_rate >= {float(d.requirement):g}: {_pass_text(d.passed)}")
+            lines.append(f"Requirement decay_rate >= {approx_text(d.requirement)}: {_pass_text(d.passed)}")
     lines.append(f"Time: {result.seconds:.2f} s")
     return "\n".join(lines)
 
@@ -222,8 +240,9 @@ def render_rank(case, result) -> str:
              "Parameters, most critical first (margins are scales of that tolerance):",
              f"{'parameter':<12} {'tolerance':<10} {'alone':>12} {'others full':>12}  acts through"]
     for p in result.parameters:
-        alone = f"{float(p.margin_alone.lower):.6g}" + ("+" if p.margin_alone.upper is None else "")
-        given = f"{float(p.margin_given_others.lower):.6g}" + ("+" if p.margin_given_others.upper is None else "")
+        alone = approx_text(p.margin_alone.lower, 6) + ("+" if p.margin_alone.upper is None else "")
+        given = (approx_text(p.margin_given_others.lower, 6)
+                 + ("+" if p.margin_given_others.upper is None else ""))
         acts = ", ".join(f"a{power}({d})" for power, d in p.coefficients)
         lines.append(f"{p.name:<12} {p.tolerance:<10} {alone:>12} {given:>12}  {acts}")
     if result.robustly_stable is False:
@@ -231,10 +250,12 @@ def render_rank(case, result) -> str:
         lines.append("The design is not robustly stable. Tightening one tolerance alone (others as given):")
         for p in result.parameters:
             if p.restores:
-                lines.append(f"  {p.name}: scale its tolerance to at most {float(p.tightened):.4g} x the present one")
+                lines.append(f"  {p.name}: scale its tolerance to at most {approx_text(p.tightened, 4)} "
+                             "x the present one")
             elif p.restores is False:
                 lines.append(f"  {p.name}: no tightening of this part alone restores stability")
-    lines.append("(+ : stable up to the cap; 'alone': others at nominal; 'others full': others over their range)")
+    lines.append("(+ : stable up to the cap; 'alone': others at nominal; "
+                 "'others full': others over their range)")
     return "\n".join(lines)
 
 
@@ -247,15 +268,15 @@ def render_yield(case, result) -> str:
              f"  exact re-checks of unclear float decisions: {result.exact_rechecks}"]
     if result.unstable_ranges:
         lines.append("  parameter ranges of the unstable draws:")
-        for name, a, b in result.unstable_ranges:
-            lines.append(f"    {name}: {a:.6g} .. {b:.6g}")
+        for name, a, b in result.unstable_ranges_exact:
+            lines.append(f"    {name}: {approx_text(a)} .. {approx_text(b)}")
     lines.append("A yield estimate is no proof: use `robust check` for the worst case.")
     return "\n".join(lines)
 
 
 def render_requirements(requirements) -> str:
     """Pass/fail lines for the case's requirements."""
-    words = {"margin": "margin (stable with every tolerance scaled by {v:g})",
-             "decay_rate": "decay rate (every root has Re(s) < -{v:g})"}
-    return "\n".join(f"Requirement {words[r.name].format(v=float(r.required))}: {_pass_text(r.passed)}"
+    words = {"margin": "margin (stable with every tolerance scaled by {v})",
+             "decay_rate": "decay rate (every root has Re(s) < -{v})"}
+    return "\n".join(f"Requirement {words[r.name].format(v=approx_text(r.required))}: {_pass_text(r.passed)}"
                      for r in requirements)

@@ -12,8 +12,8 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
 
-from ..errors import InputError
 from ..analysis.signoff import Analysis
+from ..errors import InputError
 from .content import build_document
 from .data import TOOL_NAME, result_data
 from .figures import FIGURE_NAMES, draw_figures
