@@ -459,3 +459,15 @@ def test_numbers_beyond_the_float_range_work_in_check_trace_and_yield(tmp_path, 
                 assert data["verdict"] == "stable"
     shown, _ = run("trace", str(path))
     assert "inf" not in shown.stdout  # the ranges are written as numbers, e.g. 9e+399
+
+
+def test_witness_beyond_the_float_range_is_shown_without_float_roots(tmp_path):
+    """An unstable family at R = 1e400 shows its exact witness; float root values are left out."""
+    path = tmp_path / "unstable.toml"
+    path.write_text('title = "huge and unstable"\n[parameters.R]\nnominal = "1e400"\ntolerance = "1%"\n'
+                    '[polynomial]\nexpression = "s^3 + 2*s^2 + 2*s + R"\n', encoding="utf-8")
+    result, _ = run("check", str(path))
+    # a2 a1 = 4 < a3 a0 = R: unstable (degree-3 Hurwitz condition; Gantmacher 1959, from memory)
+    assert result.exit_code == 1, result.stderr
+    assert "Traceback" not in result.stderr
+    assert "R = 1e+400" in result.stdout and "root values: not shown" in result.stdout

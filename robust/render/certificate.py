@@ -9,7 +9,7 @@ from ..exact.interval import KharitonovVertex
 from ..exact.numbers import approx_text, percent_text
 from ..exact.routh import RouthTable
 from .blocks import Cell, Code, ItemList, Paragraph, Section, Table
-from .fmt import entry_cell, exact_cell
+from .fmt import entry_cell, exact_cell, witness_roots
 
 __all__ = ["certificate_section", "undecided_blocks", "witness_section"]
 
@@ -93,8 +93,9 @@ def witness_section(case, witness: Witness, title: str = "Witness: a parameter s
                      Cell((f"{approx_text(p.low)} … {approx_text(p.high)}",), numeric=True),
                      Cell((p.unit,))))
     table = Table(("parameter", "exact value", "value", "range", "unit"), tuple(rows))
-    values = witness.root_values()
-    shown = [f"{z.real:.6g} {'+' if z.imag >= 0 else '−'} {abs(z.imag):.6g}j" for z in values[:10]]
+    values = witness_roots(witness)
+    shown = ["not shown: the coefficients lie beyond the float range"] if values is None else [
+        f"{z.real:.6g} {'+' if z.imag >= 0 else '−'} {abs(z.imag):.6g}j" for z in values[:10]]
     blocks = (
         Paragraph((f"Found by: {witness.found_by}. Re-checked with the exact Routh array at these exact "
                    "rational values.",)),

@@ -7,6 +7,7 @@ from fractions import Fraction
 
 from ..exact.numbers import approx_text, format_fraction, percent_text, to_float
 from ..exact.routh import RouthTable, format_entry
+from .fmt import witness_roots
 
 __all__ = ["render_table", "roots_sentence"]
 
@@ -129,8 +130,12 @@ def render_check(case, result) -> str:
             lines.append(f"  {name} = {_fmt(value)}{unit}   "
                          f"[range {approx_text(p.low, 6)} .. {approx_text(p.high, 6)}]")
         lines.append(f"  roots: {_roots_line(w.roots)}")
-        shown = ", ".join(f"{z.real:.4g}{z.imag:+.4g}j" for z in w.root_values()[:6])
-        lines.append(f"  root values (floats, for display): {shown}")
+        values = witness_roots(w)
+        if values is None:
+            lines.append("  root values: not shown (the coefficients lie beyond the float range)")
+        else:
+            shown = ", ".join(f"{z.real:.4g}{z.imag:+.4g}j" for z in values[:6])
+            lines.append(f"  root values (floats, for display): {shown}")
     if result.verdict == "undecided":
         lines.append(f"Unresolved: {percent_text(result.unresolved, 3)} of the box volume")
         if result.largest_unproven is not None:
