@@ -23,7 +23,7 @@ from __future__ import annotations
 import importlib
 from typing import TYPE_CHECKING, Any
 
-from ._version import __version__
+from ._version import __version__ as __version__
 
 #: public name -> module that defines it
 _EXPORTS = {

@@ -23,8 +23,8 @@ import pytest
 import sympy as sp
 from click.testing import CliRunner
 
-from robust.model.case import load_case
 from robust.cli import main
+from robust.model.case import load_case
 
 F = Fraction
 CASES_DIR = Path(__file__).resolve().parent.parent / "cases"
@@ -176,8 +176,8 @@ BAD_INPUTS = [
      "unexpected character"),
     ("unicode_digit_nominal", parameter('nominal = "\u0663"\ntolerance = "1%"'), "parameters.R.nominal", 3,
      "not a number"),
-    ("multi_line_title", 'title = "two\\nlines"\n' + HEAD.split("\n", 1)[1] + POLY + 'expression = "R*s + 1"\n',
-     "title", 1, "several lines"),
+    ("multi_line_title", 'title = "two\\nlines"\n' + HEAD.split("\n", 1)[1] + POLY
+     + 'expression = "R*s + 1"\n', "title", 1, "several lines"),
     ("exponent_of_thousands_of_digits", expression("s^" + "9" * 5000), "polynomial.expression", 6,
      "exponent too large"),
 ]

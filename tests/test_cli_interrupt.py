@@ -28,7 +28,8 @@ QUICK = ["--max-seconds", "3", "--draws", "300"]
 
 def _report(directory: Path) -> dict[str, bytes]:
     """Every file of a report folder, by relative path."""
-    return {str(p.relative_to(directory)): p.read_bytes() for p in sorted(directory.rglob("*")) if p.is_file()}
+    return {str(p.relative_to(directory)): p.read_bytes()
+            for p in sorted(directory.rglob("*")) if p.is_file()}
 
 
 @pytest.fixture

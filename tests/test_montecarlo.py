@@ -25,8 +25,8 @@ from strategies import case_toml
 
 from robust.analysis.montecarlo import draw_parameters, estimate_yield, float_routh_screen
 from robust.analysis.verdict import check
-from robust.model.case import parse_case
 from robust.exact.routh import is_hurwitz
+from robust.model.case import parse_case
 
 
 def _case_text(parameters: dict[str, dict[str, str]], coefficients: list[str]) -> str:

@@ -19,10 +19,10 @@ import numpy as np
 import pytest
 from click.testing import CliRunner
 
-from robust.model.case import load_case
+from robust.analysis.signoff import analyse
 from robust.cli import main
 from robust.errors import InputError
-from robust.analysis.signoff import analyse
+from robust.model.case import load_case
 from robust.render import choose_omegas, result_data, sample_draws, value_set_data, write_report
 from robust.render.figures import FIGURE_NAMES
 
