@@ -25,16 +25,16 @@ Target: every polynomial well under a second in ``routh_table`` + rendering (it 
 
 from __future__ import annotations
 
-import multiprocessing as mp
-import statistics
 import sys
-import time
 from pathlib import Path
 
 import sympy as sp
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path[:0] = [str(ROOT), str(ROOT / "tests")]  # this checkout's robust, and the test reference
+
+from bench_routh import median_time, run_in_child  # noqa: E402
+from reference import isolated_counts  # noqa: E402
 
 import robust  # noqa: E402
 from robust.render.text import render_table  # noqa: E402
@@ -67,36 +67,6 @@ def shown(c: list[int]) -> robust.RouthTable:
     return table
 
 
-def median_seconds(func, argument) -> tuple[float, object]:
-    times = []
-    for _ in range(REPEATS):
-        start = time.perf_counter()
-        result = func(argument)
-        times.append(time.perf_counter() - start)
-    return statistics.median(times), result
-
-
-def _sympy_child(c, queue) -> None:
-    from reference import isolated_counts
-
-    start = time.perf_counter()
-    counts = isolated_counts(c)
-    queue.put((counts, time.perf_counter() - start))
-
-
-def time_sympy(c: list[int]) -> tuple[tuple[int, int, int] | None, float | None]:
-    context = mp.get_context("fork")
-    queue = context.Queue()
-    child = context.Process(target=_sympy_child, args=(c, queue))
-    child.start()
-    child.join(SYMPY_BUDGET)
-    if child.is_alive():
-        child.terminate()
-        child.join()
-        return None, None
-    return queue.get()
-
-
 def main() -> int:
     print(f"robust {robust.__version__}, sympy {sp.__version__}, Python {sys.version.split()[0]}")
     print(f"ours: median of {REPEATS}; sympy: one run, budget {SYMPY_BUDGET:.0f} s\n")
@@ -106,10 +76,10 @@ def main() -> int:
     print("-" * len(header))
     worst = 0.0
     for name, c in CASES.items():
-        table_seconds, table = median_seconds(robust.routh_table, c)
-        total, _ = median_seconds(shown, c)
+        table_seconds, table = median_time(robust.routh_table, c, REPEATS)
+        total, _ = median_time(shown, c, REPEATS)
         worst = max(worst, total)
-        counts, seconds = time_sympy(c)
+        counts, seconds = run_in_child(isolated_counts, c, SYMPY_BUDGET)
         got = (table.roots.open_right, table.roots.imaginary_axis, table.roots.open_left)
         if seconds is None:
             sympy_text, ratio = f"> {SYMPY_BUDGET:.0f} s", f"> {SYMPY_BUDGET / table_seconds:.0f}x"
