@@ -100,17 +100,18 @@ def sympy_right_count(coefficients: list[int]) -> int:
     return right
 
 
-def _sympy_child(coefficients, queue) -> None:
+def _timed_child(func, argument, queue) -> None:
     start = time.perf_counter()
-    count = sympy_right_count(coefficients)
-    queue.put((count, time.perf_counter() - start))
+    result = func(argument)
+    queue.put((result, time.perf_counter() - start))
 
 
-def time_sympy(coefficients: list[int], budget: float) -> tuple[int | None, float | None]:
-    """(count, seconds) or (None, None) when sympy does not finish within the budget."""
+def run_in_child(func, argument, budget: float) -> tuple[object, float | None]:
+    """(func(argument), seconds) from a child process, or (None, None) when it does not
+    finish within ``budget`` seconds (the child is then stopped)."""
     context = mp.get_context("fork")
     queue = context.Queue()
-    child = context.Process(target=_sympy_child, args=(coefficients, queue))
+    child = context.Process(target=_timed_child, args=(func, argument, queue))
     child.start()
     child.join(budget)
     if child.is_alive():
@@ -118,6 +119,11 @@ def time_sympy(coefficients: list[int], budget: float) -> tuple[int | None, floa
         child.join()
         return None, None
     return queue.get()
+
+
+def time_sympy(coefficients: list[int], budget: float) -> tuple[int | None, float | None]:
+    """(count, seconds) or (None, None) when sympy does not finish within the budget."""
+    return run_in_child(sympy_right_count, coefficients, budget)  # type: ignore[return-value]
 
 
 def median_time(func, argument, repeats: int) -> tuple[float, object]:

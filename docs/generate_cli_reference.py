@@ -38,7 +38,23 @@ Exit codes, for every command unless its section says more:
 |---|---|
 | 0 | success (for `check`: proven stable and every requirement met) |
 | 1 | the analysis says not stable, undecided, or a requirement failed (see each command) |
-| 2 | bad input: one line `robust: error: ...` on stderr naming the file, line, field and what was expected |
+| 2 | bad input, a bad option or an unusable output path: one line `robust: error: ...` on stderr naming the file, line, field (or option) and what was expected, given before any analysis runs |
+| 130 | interrupted (Ctrl-C, SIGINT): one line `robust: interrupted` on stderr; a report being written is not left half-done and a previous one stays as it was |
+
+No command prints a traceback. An interrupt in the first few tens of milliseconds, while the
+Python interpreter itself starts (before robust's code runs), is handled by Python.
+
+Output paths are checked before the analysis: `report -o DIR` must be a new directory, an
+empty one or one holding a previous robust report (never a file, a symbolic link, a path
+under a file, or a folder that cannot be written; a report folder holding a symbolic link is
+refused, as links there are never followed); `trace --graphml FILE` must be a new file in an
+existing, writable folder. Reports are written into a temporary folder beside the target
+and renamed into place when complete.
+
+Limits on what is read (see [case files](case-files.md#limits) for the formulas): a case
+file of at most 1,000,000 bytes (checked before it is read; devices and pipes are refused),
+and `routh` tables whose entries in `ε` would outgrow the display bound leave out their
+bottom rows (`omitted_rows`) while the root counts stay exact.
 
 See [the tutorial](tutorial.md) for worked examples and [case files](case-files.md) for the
 input format.
@@ -57,7 +73,10 @@ NOTES: dict[str, dict[str, list[str]]] = {
             '`rows`: list of `{"power": k, "entries": [str, ...]}`, top row (power n) first; '
             'entries are exact rationals such as `"7/2"`, or expressions in `ε` after a zero '
             "leading entry",
-            "`sign_changes`: sign changes down the first column",
+            "`sign_changes`: sign changes down the first column (of the rows shown)",
+            "`omitted_rows`: rows left out at the bottom because their entries in `ε` outgrew "
+            "the display bound (0 for a complete table; the counts then come from the Cauchy "
+            "index, see docs/methods.md)",
             '`roots`: `{"open_right": n, "imaginary_axis": n, "open_left": n}`',
             "`special_rows`: the zero-leading-entry and zero-row events, with the auxiliary "
             "polynomial of a zero row",

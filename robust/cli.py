@@ -1,14 +1,17 @@
 """The command line: a thin layer over the public API.
 
 Each command parses its options, calls the library, and renders the result as text or (with
-``--json``) as one JSON document on stdout. A :class:`~robust.errors.RobustError` becomes one
-line on stderr and its exit code (2 for bad input); progress goes to stderr only.
+``--json``) as one JSON document on stdout; progress goes to stderr only. Errors are turned
+into one line on stderr in one place, :meth:`_Robust.main`: a
+:class:`~robust.errors.RobustError` or a usage error exits 2, an interrupt (Ctrl-C) exits 130
+with "robust: interrupted", never with a traceback.
 """
 
 from __future__ import annotations
 
-import functools
+import contextlib
 import json
+import signal
 import sys
 from collections.abc import Callable
 from typing import Any
@@ -18,6 +21,7 @@ import click
 from ._version import __version__
 from .analysis.outcomes import Outcome
 from .errors import RobustError
+from .exact.numbers import approx_text, percent_text
 from .exact.routh import RouthTable
 from .model.forms import routh_table
 from .render.text import render_table
@@ -27,35 +31,86 @@ from .render.text import render_table
 EXAMPLE_POLYNOMIAL = "s^4 + 6*s^3 + 13.5*s^2 + 12*s + 4.2"
 
 
-def _fail(error: RobustError) -> None:
-    click.echo(f"robust: error: {error}", err=True)
-    sys.exit(error.exit_code)
+#: Exit code of an interrupted command (128 + SIGINT, as shells report it).
+EXIT_INTERRUPTED = 130
 
 
-def _guarded(func: Callable[..., Any]) -> Callable[..., Any]:
-    """Turn every RobustError into one line on stderr and its exit code."""
+class Interrupted(BaseException):
+    """Raised by our SIGINT handler: not a KeyboardInterrupt, so that nothing on the way
+    (click included) prints anything for it; only :meth:`_Robust.main` reports it."""
 
-    @functools.wraps(func)
-    def wrapper(*args: Any, **kwargs: Any) -> Any:
+
+def _raise_interrupted(_signum: int, _frame: object) -> None:
+    raise Interrupted
+
+
+def _one_line(text: str) -> str:
+    return " ".join(part.strip() for part in str(text).splitlines() if part.strip())
+
+
+def _say(line: str) -> None:
+    """One line on stderr, even when stderr is gone."""
+    with contextlib.suppress(OSError):  # nowhere left to say it: the exit code still tells
+        click.echo(line, err=True)
+
+
+def _usage_line(error: click.UsageError) -> str:
+    where = error.ctx.command_path if error.ctx is not None else "robust"
+    return f"robust: error: {_one_line(error.format_message())} (see '{where} --help')"
+
+
+class _Robust(click.Group):
+    """The command group; its :meth:`main` is the one place errors become exit codes."""
+
+    def invoke(self, ctx: click.Context) -> Any:
         try:
-            return func(*args, **kwargs)
-        except RobustError as error:
-            _fail(error)
-        except RecursionError:
-            click.echo("robust: error: input nested too deeply", err=True)
-            sys.exit(2)
+            return super().invoke(ctx)
+        except KeyboardInterrupt:  # raised by other code: one report, as for our own signal
+            raise Interrupted from None
 
-    return wrapper
+    def main(self, args: Any = None, prog_name: str | None = None, complete_var: str | None = None,
+             standalone_mode: bool = True, **extra: Any) -> Any:
+        if not standalone_mode:  # a caller that wants click's exceptions
+            return super().main(args, prog_name, complete_var, standalone_mode=False, **extra)
+        try:
+            previous = signal.signal(signal.SIGINT, _raise_interrupted)
+        except ValueError:  # not the main thread: KeyboardInterrupt stays, and is caught too
+            previous = None
+        try:
+            code = super().main(args, prog_name, complete_var, standalone_mode=False, **extra)
+        except (Interrupted, KeyboardInterrupt, click.Abort):
+            _say("robust: interrupted")
+            code = EXIT_INTERRUPTED
+        except click.UsageError as error:
+            _say(_usage_line(error))
+            code = error.exit_code
+        except click.ClickException as error:
+            _say(f"robust: error: {_one_line(error.format_message())}")
+            code = error.exit_code
+        except RobustError as error:
+            _say(f"robust: error: {_one_line(str(error))}")
+            code = error.exit_code
+        except RecursionError:
+            _say("robust: error: input nested too deeply")
+            code = 2
+        finally:
+            if previous is not None:
+                signal.signal(signal.SIGINT, previous)
+        sys.exit(code if isinstance(code, int) else 0)
 
 
 def _emit_json(data: object) -> None:
     click.echo(json.dumps(data, indent=2, ensure_ascii=False))
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.group(cls=_Robust, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="robust")
 def main() -> None:
-    """Prove or refute the stability of a feedback loop over its parts' tolerances."""
+    """Prove or refute the stability of a feedback loop over its parts' tolerances.
+
+    Exit codes: 0 success (for check: robustly stable), 1 not stable, undecided or a
+    requirement failed, 2 bad input or an unusable output path, 130 interrupted.
+    """
 
 
 @main.command("routh")
@@ -64,7 +119,6 @@ def main() -> None:
 @click.option("--shift", "sigma", default="0", show_default=True,
               help="Count roots relative to the line Re(s) = -SIGMA.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-@_guarded
 def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, as_json: bool) -> None:
     """Exact Routh array of POLYNOMIAL (an expression in s) and its root counts.
 
@@ -97,7 +151,7 @@ def _progress_printer(label: str):
         if seconds < 1.0:
             return
         shown["any"] = True
-        click.echo(f"\r{label}: {float(proven):6.1%} of the box proven, {boxes} boxes, "
+        click.echo(f"\r{label}: {percent_text(proven, 1):>6} of the box proven, {boxes} boxes, "
                    f"{seconds:5.1f} s", err=True, nl=False)
 
     def finish() -> None:
@@ -141,17 +195,16 @@ _CASE = click.Path(dir_okay=True, path_type=str)
 @click.argument("case", type=_CASE)
 @_budget_options
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-@_guarded
 def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) -> None:
     """Prove CASE stable over every tolerance, or find a verified counterexample.
 
     Exit code 0: robustly stable (and requirements met); 1: unstable, undecided or a
     requirement failed; 2: bad input.
     """
-    from .model.case import load_case
     from .analysis.requirements import check_requirements
-    from .render.text import render_check, render_requirements
     from .analysis.verdict import check
+    from .model.case import load_case
+    from .render.text import render_check, render_requirements
 
     loaded = load_case(case)
     report, finish = _progress_printer("check")
@@ -175,20 +228,16 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
 @click.option("--graphml", type=click.Path(dir_okay=False, path_type=str),
               help="Also write the dependency graph as GraphML to this new file.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-@_guarded
 def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
     """Show which parameter drives which coefficient, in which direction, and the bounds."""
-    from pathlib import Path
-
     from .model.case import load_case
-    from .errors import InputError
     from .model.graph import build_graph, write_graphml
+    from .render import check_new_file
     from .render.text import render_trace, trace_data
 
+    if graphml is not None:
+        check_new_file(graphml, "--graphml")
     loaded = load_case(case)
-    if graphml is not None and Path(graphml).exists():
-        raise InputError("--graphml", "the file exists already; robust never overwrites it",
-                         "a new file name", graphml)
     graph = build_graph(loaded.family)
     if graphml is not None:
         write_graphml(graph, graphml)
@@ -208,16 +257,15 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
 @_search_budget_options(1000, 48)
 @click.option("--no-decay", is_flag=True, help="Skip the decay-rate margin.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-@_guarded
 def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: float, max_boxes: int,
                    max_tests: int, no_decay: bool, as_json: bool) -> None:
     """Robust margin rho* (how far every tolerance can grow) and the decay-rate margin.
 
     Exit code 1 when a requirement of the case is not met.
     """
-    from .model.case import load_case
-    from .exact.numbers import to_fraction
     from .analysis.margin import margin
+    from .exact.numbers import to_fraction
+    from .model.case import load_case
     from .render.text import render_margin
 
     loaded = load_case(case)
@@ -243,11 +291,10 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
 @click.argument("case", type=_CASE)
 @_search_budget_options(500, 16)
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-@_guarded
 def rank_command(case: str, max_seconds: float, max_boxes: int, max_tests: int, as_json: bool) -> None:
     """Rank the parameters, most critical first, with their margins."""
-    from .model.case import load_case
     from .analysis.rank import rank
+    from .model.case import load_case
     from .render.text import render_rank
 
     loaded = load_case(case)
@@ -266,11 +313,10 @@ def rank_command(case: str, max_seconds: float, max_boxes: int, max_tests: int, 
               help="Number of random builds.")
 @click.option("--seed", type=int, default=0, show_default=True, help="Random seed.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-@_guarded
 def yield_command(case: str, draws: int, seed: int, as_json: bool) -> None:
     """Monte Carlo yield: the fraction of random builds that are stable."""
-    from .model.case import load_case
     from .analysis.montecarlo import estimate_yield
+    from .model.case import load_case
     from .render.text import render_yield
 
     loaded = load_case(case)
@@ -302,8 +348,8 @@ def _summary_lines(analysis, files) -> list[str]:
              f"Verdict: {check.verdict.value.upper()}  ({check.method_text})"]
 
     def bracket(b) -> str:
-        upper = "no failure found up to the cap" if b.upper is None else f"{float(b.upper):.6g}"
-        return f"[{float(b.lower):.6g}, {upper}]"
+        upper = "no failure found up to the cap" if b.upper is None else approx_text(b.upper, 6)
+        return f"[{approx_text(b.lower, 6)}, {upper}]"
 
     lines.append(f"Robust margin rho*: {bracket(m.margin)}; {m.limit.sentence()}")
     if m.decay is not None:
@@ -340,15 +386,14 @@ def _summary_lines(analysis, files) -> list[str]:
               help="Monte Carlo draws for the yield.")
 @click.option("--seed", type=int, default=0, show_default=True, help="Random seed.")
 @click.option("--json", "as_json", is_flag=True, help="Print the result as one JSON document.")
-@_guarded
 def report_command(case: str, directory: str, max_boxes: int, search_boxes: int, search_tests: int,
                    max_seconds: float, draws: int, seed: int, as_json: bool) -> None:
     """Write the sign-off report of CASE into a directory (HTML, Markdown, JSON).
 
     Exit code 0 when the report was written, whatever it concludes; 2: bad input.
     """
-    from .model.case import load_case
     from .analysis.signoff import analyse
+    from .model.case import load_case
     from .render import check_directory, result_data, write_report
 
     check_directory(directory)
@@ -368,7 +413,6 @@ def report_command(case: str, directory: str, max_boxes: int, search_boxes: int,
 @main.command("demo")
 @click.option("-o", "--output", "directory", default="robust-demo-report", show_default=True,
               type=click.Path(path_type=str), help="Directory for the demo report.")
-@_guarded
 def demo_command(directory: str) -> None:
     """Analyse the built-in demo case (a DC-motor servo) and write its report.
 
@@ -378,8 +422,8 @@ def demo_command(directory: str) -> None:
     from importlib import resources
     from pathlib import Path
 
-    from .model.case import load_case
     from .analysis.signoff import analyse
+    from .model.case import load_case
     from .render import check_directory, write_report
 
     source = resources.files("robust") / "data" / "demo.toml"

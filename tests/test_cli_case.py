@@ -161,6 +161,25 @@ BAD_INPUTS = [
      + 'expression = "s + 1"\n', "parameters.1R", None, "name"),
     ("parameter_named_s", 'title = "t"\n[parameters.s]\nnominal = 1\ntolerance = 0\n' + POLY
      + 'expression = "s + 1"\n', "parameters.s", 2, "variable"),
+    # a controller whose denominator is zero once expanded: the loop would read as "stable"
+    ("identically_zero_denominator", HEAD + "[polynomial.loop]\n" + 'plant = "1/(s-R)"\n'
+     + 'controller = "(s+1)/((s+1)^2-s^2-2*s-1)"\n', "polynomial.loop.controller", 7,
+     "identically zero once expanded"),
+    ("identically_zero_negative_power", expression("s^2 + (R - R)^-1"), "polynomial.expression", 6,
+     "identically zero once expanded"),
+    ("expansion_over_the_work_limit", expression("(R+s+1)^60*(R+s+2)^60"), "polynomial.expression", 6,
+     "term products"),
+    ("formulas_too_long_together", HEAD + POLY + "coefficients = ["
+     + ", ".join([json.dumps("+".join(["R"] * 9999))] * 6) + "]\n", "polynomial.coefficients", 6,
+     "too long together"),
+    ("unicode_digit_in_formula", expression("R*s + \u0663"), "polynomial.expression", 6,
+     "unexpected character"),
+    ("unicode_digit_nominal", parameter('nominal = "\u0663"\ntolerance = "1%"'), "parameters.R.nominal", 3,
+     "not a number"),
+    ("multi_line_title", 'title = "two\\nlines"\n' + HEAD.split("\n", 1)[1] + POLY
+     + 'expression = "R*s + 1"\n', "title", 1, "several lines"),
+    ("exponent_of_thousands_of_digits", expression("s^" + "9" * 5000), "polynomial.expression", 6,
+     "exponent too large"),
 ]
 
 
@@ -231,6 +250,33 @@ def test_directory_exits_2(tmp_path):
     """A directory given as a case is bad input, named in one line."""
     result, seconds = run("check", str(tmp_path))
     assert_one_line_error(result, seconds, tmp_path, None, None, "directory")
+
+
+def test_byte_order_mark_is_accepted(tmp_path):
+    """A case file that starts with a UTF-8 byte-order mark reads like one without it."""
+    path = tmp_path / "bom.toml"
+    path.write_bytes(b"\xef\xbb\xbf" + expression("R*s + 1").encode())
+    result, _ = run("check", str(path), "--json")
+    assert result.exit_code == 0, result.stderr
+    assert json.loads(result.stdout)["verdict"] == "stable"  # R*s + 1 with R near 2: root -1/R
+
+
+@pytest.mark.skipif(not Path("/dev/zero").exists(), reason="no /dev/zero here")
+def test_device_is_refused_before_it_is_read():
+    """/dev/zero (endless) is refused as not a regular file, without reading it."""
+    result, seconds = run("check", "/dev/zero")
+    assert_one_line_error(result, seconds, "/dev/zero", None, None, "not a regular file")
+
+
+def test_oversized_file_is_refused_before_it_is_read(tmp_path):
+    """A file over the size limit is refused from its size alone (a sparse file: no data)."""
+    from robust.model.case import MAX_FILE
+
+    path = tmp_path / "huge.toml"
+    with open(path, "wb") as handle:
+        handle.truncate(MAX_FILE + 1)
+    result, seconds = run("check", str(path))
+    assert_one_line_error(result, seconds, path, None, None, "file too large")
 
 
 def test_non_utf8_file_exits_2(tmp_path):
@@ -383,3 +429,45 @@ def test_trace_graphml_to_a_directory_is_refused(tmp_path):
     """--graphml naming a directory is a usage error (exit 2)."""
     result, _ = run("trace", str(CASES_DIR / "thermal_pi_affine.toml"), "--graphml", str(tmp_path))
     assert result.exit_code == 2
+
+
+# -- numbers of every documented size --------------------------------------------------------------
+
+HUGE_LITERAL = "7" * 5000  # beyond Python's 4,300-digit integer-string limit
+
+
+@pytest.mark.parametrize("nominal", ["1e400", "1e-400", HUGE_LITERAL], ids=["1e400", "1e-400", "5000-digits"])
+def test_numbers_beyond_the_float_range_work_in_check_trace_and_yield(tmp_path, nominal):
+    """Nominals of 1e400, 1e-400 and 5000 digits (docs allow exponents to 400, literals of any
+    length) run through check, trace and yield without a traceback; R*s^2 + K*s + R is stable
+    for R > 0 and K > 0 (degree 2: all coefficients positive; Gantmacher 1959, from memory)."""
+    path = tmp_path / "scale.toml"
+    path.write_text('title = "extreme scale"\n[parameters.R]\n'
+                    f'nominal = "{nominal}"\ntolerance = "10%"\n'
+                    '[parameters.K]\nnominal = "2"\ntolerance = "5%"\n'
+                    '[polynomial]\nexpression = "R*s^2 + K*s + R"\n', encoding="utf-8")
+    for args in (["check", "--json"], ["trace"], ["trace", "--json"], ["yield", "-n", "300", "--json"]):
+        result, _ = run(args[0], str(path), *args[1:])
+        assert result.exit_code == 0, (args, result.stderr)
+        assert "Traceback" not in result.stderr + result.stdout
+        if "--json" in args:
+            data = json.loads(result.stdout)  # valid JSON: no Infinity or NaN tokens
+            assert "Infinity" not in result.stdout and "NaN" not in result.stdout
+            if args[0] == "yield":
+                assert data["stable"] == 300
+            if args[0] == "check":
+                assert data["verdict"] == "stable"
+    shown, _ = run("trace", str(path))
+    assert "inf" not in shown.stdout  # the ranges are written as numbers, e.g. 9e+399
+
+
+def test_witness_beyond_the_float_range_is_shown_without_float_roots(tmp_path):
+    """An unstable family at R = 1e400 shows its exact witness; float root values are left out."""
+    path = tmp_path / "unstable.toml"
+    path.write_text('title = "huge and unstable"\n[parameters.R]\nnominal = "1e400"\ntolerance = "1%"\n'
+                    '[polynomial]\nexpression = "s^3 + 2*s^2 + 2*s + R"\n', encoding="utf-8")
+    result, _ = run("check", str(path))
+    # a2 a1 = 4 < a3 a0 = R: unstable (degree-3 Hurwitz condition; Gantmacher 1959, from memory)
+    assert result.exit_code == 1, result.stderr
+    assert "Traceback" not in result.stderr
+    assert "R = 1e+400" in result.stdout and "root values: not shown" in result.stdout

@@ -9,6 +9,7 @@ float through its shortest repr (Python's float repr since 3.1; from memory).
 from __future__ import annotations
 
 import math
+from decimal import Decimal, localcontext
 from fractions import Fraction
 
 import numpy as np
@@ -18,7 +19,15 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from robust.errors import InputError, RobustError
-from robust.exact.numbers import format_fraction, parse_number, to_fraction
+from robust.exact.numbers import (
+    approx_text,
+    format_fraction,
+    integer_text,
+    parse_number,
+    percent_text,
+    to_float,
+    to_fraction,
+)
 
 
 def as_fraction(value: sp.Rational) -> Fraction:
@@ -128,3 +137,41 @@ def test_format_fraction_writes_exact_text(value, text):
     """Integers print without a denominator, other rationals as p/q."""
     assert format_fraction(value) == text
     assert parse_number(text) == value
+
+
+# -- numbers of any size ----------------------------------------------------------------------
+
+
+@given(st.floats(allow_nan=False, allow_infinity=False, min_value=-1e300, max_value=1e300)
+       .map(lambda x: x + 0.0),  # -0.0 is the exact 0
+       st.integers(1, 12))
+def test_approx_text_writes_in_range_numbers_as_floats_do(x, digits):
+    """Inside the float range approx_text(x) is Python's own f"{x:.{digits}g}"."""
+    assert approx_text(Fraction(x), digits) == f"{x:.{digits}g}"  # Python's float formatting
+
+
+@given(st.integers(-400, 400).filter(lambda e: abs(e) > 320), st.integers(1, 999))
+def test_approx_text_writes_numbers_beyond_floats_like_decimal(exponent, mantissa):
+    """Beyond the float range the text is Python's Decimal rounding of the exact value."""
+    value = Fraction(mantissa) * Fraction(10) ** exponent
+    with localcontext() as context:  # decimal module (the General Decimal Arithmetic spec)
+        context.prec = 6
+        expected = f"{(Decimal(mantissa) * Decimal(10) ** exponent).normalize():.6g}"
+    assert approx_text(value) == expected
+    assert "inf" not in approx_text(value) and approx_text(value) != "0"
+
+
+def test_to_float_never_raises_and_saturates():
+    """1e400 is inf, -1e400 is -inf, 1e-400 is 0.0 (nearest float or +-inf; no OverflowError)."""
+    assert to_float(Fraction(10) ** 400) == math.inf
+    assert to_float(-(Fraction(10) ** 400)) == -math.inf
+    assert to_float(Fraction(1, 10**400)) == 0.0
+    assert to_float(Fraction(1, 3)) == 1 / 3
+
+
+def test_integers_of_any_length_are_written_exactly():
+    """A 5000-digit integer is written in full (past Python's int-to-str limit)."""
+    value = 7 * (10**5000 - 1) // 9
+    assert integer_text(value) == "7" * 5000
+    assert format_fraction(Fraction(value, 3)) == "7" * 5000 + "/3"
+    assert percent_text(Fraction(10) ** 400) == "1e+402%"

@@ -19,6 +19,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from robust.errors import FormulaError, InputError
+from robust.exact.numbers import parse_number
 from robust.model.expr import MAX_EXPONENT, parse_formula, polynomial_coefficients
 
 S = sp.Symbol("s")
@@ -296,3 +297,64 @@ def test_largest_allowed_degree_is_accepted():
     coefficients = polynomial_coefficients("(s + 1)^200")
     assert len(coefficients) == 201
     assert coefficients[100] == sp.binomial(200, 100)  # binomial theorem (common practice)
+
+
+# -- expansion: exact, bounded, and what is zero once expanded -----------------------------------
+
+
+def test_division_by_an_expression_that_expands_to_zero_is_refused():
+    """(s+1)/((s+1)^2 - s^2 - 2s - 1) divides by zero once expanded: refused at the '/'."""
+    with pytest.raises(FormulaError, match="identically zero once expanded") as caught:
+        parse_formula("(s+1)/((s+1)^2-s^2-2*s-1)")
+    assert caught.value.position == 6
+    with pytest.raises(FormulaError, match="identically zero once expanded"):
+        parse_formula("s + (K - K)^-2", names=NAMES)
+    with pytest.raises(FormulaError, match="division by zero"):
+        parse_formula("s/0")
+
+
+def test_power_of_a_sum_expands_like_sympy():
+    """(R1 + C1 + 1)^40 * s + 1 expands exactly as sympy's expand of the same product."""
+    got = parse_formula("(R1 + C1 + 1)^40*s + 1", names=NAMES).expression
+    assert sp.expand(got - ((R1 + C1 + 1) ** 40 * S + 1)) == 0  # sympy (Meurer et al., 2017)
+
+
+def test_numerator_and_denominator_are_kept_as_written():
+    """(s + 1)/(s + 1) keeps both factors: a cancellation must not hide a mode."""
+    result = parse_formula("(s + 1)/(s + 1)")
+    assert result.numerator == S + 1 and result.denominator == S + 1
+
+
+def test_expansion_over_the_work_limit_is_refused_with_the_limit():
+    """A product whose expansion needs more term products than the limit says so."""
+    from robust.model.expr import MAX_WORK
+
+    with pytest.raises(FormulaError, match=f"{MAX_WORK:,} term products"):
+        parse_formula("(R1+s+1)^60*(R1+s+2)^60", names=NAMES)
+
+
+def test_one_work_account_spans_several_formulas():
+    """Formulas that share a work account draw on one limit together."""
+    from robust.exact.sparse import Work
+
+    work = Work(1_000)
+    parse_formula("(R1 + K + 1)^10", names=NAMES, work=work)  # 3 * (1 + 3 + ... ) products
+    spent = work.spent
+    assert 0 < spent < 1_000
+    with pytest.raises(FormulaError, match="term products"):
+        parse_formula("(R1 + K + 1)^10", names=NAMES, work=work)
+
+
+def test_unicode_digits_are_not_numbers():
+    """An Arabic-Indic three is not the number 3 (only ASCII digits are)."""
+    with pytest.raises(FormulaError, match="unexpected character"):
+        parse_formula("s + \u0663")
+    with pytest.raises(InputError):
+        parse_number("\u0663")
+
+
+def test_literals_of_thousands_of_digits_are_exact():
+    """A 5000-digit integer literal is read exactly (past Python's int-string limit)."""
+    digits = "7" * 5000
+    assert parse_number(digits) == Fraction(int(digits[:2000]) * 10**3000 + int(digits[2000:]))
+    assert polynomial_coefficients(f"{digits}*s + 1")[0] == parse_number(digits)

@@ -259,3 +259,21 @@ def test_demo_writes_a_report_with_its_case_file(tmp_path):
     assert "Verdict: STABLE" in result.stdout and str(target / "report.html") in result.stdout
     data = json.loads((target / "result.json").read_text(encoding="utf-8"))
     assert data["case_sha256"] == load_case(target / "case.toml").sha256
+
+
+def test_figures_beyond_the_float_range_say_they_are_not_drawn(reports):
+    """For a family beyond the float range the sampled pictures are replaced by a note."""
+    import dataclasses
+
+    from robust.model.case import parse_case
+    from robust.render.figures import draw_figures, floats_suffice
+
+    analysis, _ = reports[IDS[0]]
+    huge = parse_case('title = "huge"\n[parameters.R]\nnominal = "1e400"\ntolerance = "1%"\n'
+                      '[polynomial]\nexpression = "R*s^2 + s + R"\n')
+    assert not floats_suffice(huge) and floats_suffice(analysis.case)
+    pictures = draw_figures(dataclasses.replace(analysis, case=huge))
+    assert [p.name for p in pictures] == list(FIGURE_NAMES)
+    notes = {p.name: p.alt for p in pictures}
+    assert notes["value_set"].startswith("Not drawn") and notes["root_cloud"].startswith("Not drawn")
+    assert all(p.png.startswith(PNG_MAGIC) for p in pictures)

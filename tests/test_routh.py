@@ -3,10 +3,12 @@
 Truth comes from outside the project:
 
 * sympy's exact root isolation (Meurer et al., "SymPy: symbolic computing in Python", PeerJ
-  Comput. Sci., 2017): ``tests/reference.py`` for polynomials built from known factors, and
-  ``isolated_counts`` below (complex root counting in a rectangle, ``Poly.count_roots``) for
-  random polynomials, whose irreducible factors make ``reference.py``'s 60-digit root
-  evaluation far too slow;
+  Comput. Sci., 2017): ``tests/reference.py``, ``reference_counts`` for polynomials built from
+  known factors and ``isolated_counts`` (complex root counting in a rectangle) for random ones;
+* the ε rows recomputed in sympy's field of rational functions QQ(ε) (the textbook recurrence
+  with the ε rule, Gantmacher 1959, ch. XV; from memory), for the tables with ε rows;
+* the roots of s^n + 1 and s^n - 1, which are roots of unity (de Moivre; common practice, no
+  source), for sparse polynomials of degree 200;
 * the counts known by construction (a root's half-plane is the sign of its real part; common
   practice, no source);
 * the closed-form Hurwitz conditions for degree 2, 3, 4 (Gantmacher, "The Theory of
@@ -28,7 +30,7 @@ import pytest
 import sympy as sp
 from hypothesis import assume, example, given, settings
 from hypothesis import strategies as st
-from reference import reference_counts
+from reference import isolated_counts, reference_counts
 from strategies import (
     RootSpec,
     integer_coefficients,
@@ -41,45 +43,9 @@ from robust import InputError, RootCounts, RouthTable, is_hurwitz, routh_table
 from robust.exact.routh import EPSILON, RouthRow, SpecialRow, format_entry
 
 S = sp.Symbol("s")
-X = sp.Symbol("x")
 
 
 # -- independent helpers --------------------------------------------------------------------
-
-
-def isolated_counts(coefficients) -> tuple[int, int, int]:
-    """(open_right, imaginary_axis, open_left) from sympy's exact root isolation.
-
-    Per square-free factor f (sympy ``sqf_list``): roots at the origin are divided out; the
-    part g = gcd(f(s), f(-s)) is even, g(s) = G(s^2), and each negative real root of G gives
-    an imaginary pair while every other root of g pairs off as r, -r; the rest h has no root
-    on the axis, so sympy's exact count of roots in the rectangle 0 <= Re <= R, |Im| <= R
-    (R above the Cauchy bound 1 + max |a_i / a_n|, from memory) is its right count.
-    """
-    poly = sp.Poly([sp.Rational(Fraction(c).numerator, Fraction(c).denominator)
-                    for c in coefficients], S, domain=sp.QQ)
-    right = axis = left = 0
-    for factor, mult in poly.sqf_list()[1]:
-        if factor.degree() <= 0:
-            continue
-        if factor.eval(0) == 0:
-            axis += mult
-            factor = sp.quo(factor, sp.Poly(S, S, domain=sp.QQ))
-        symmetric = sp.gcd(factor, factor.compose(sp.Poly(-S, S, domain=sp.QQ)))
-        rest = sp.quo(factor, symmetric)
-        if symmetric.degree() > 0:
-            even = sp.Poly(symmetric.all_coeffs()[::-1][0::2][::-1], X, domain=sp.QQ)
-            negative = even.count_roots(None, 0)  # G(0) != 0, so these are all below 0
-            axis += mult * 2 * negative
-            right += mult * (symmetric.degree() - 2 * negative) // 2
-            left += mult * (symmetric.degree() - 2 * negative) // 2
-        if rest.degree() > 0:
-            coeffs = rest.all_coeffs()
-            bound = sp.Integer(int(1 + max(abs(c) for c in coeffs[1:]) / abs(coeffs[0])) + 1)
-            in_right = rest.count_roots(-bound * sp.I, bound + bound * sp.I)
-            right += mult * in_right
-            left += mult * (rest.degree() - in_right)
-    return right, axis, left
 
 
 def plain_routh_rows(coefficients):
@@ -467,3 +433,114 @@ def test_text_and_coefficient_forms_give_the_same_table():
     coefficients = routh_table([1, "1.5", "3", "1.25"])
     assert text.coefficients == coefficients.coefficients
     assert [r.entries for r in text.rows] == [r.entries for r in coefficients.rows]
+
+
+# -- special cases at high degree and the tables with ε rows -----------------------------------
+
+EPS = sp.Symbol("ε", positive=True)
+FIELD, FIELD_EPS = sp.field([EPS], sp.QQ)
+
+
+def field_rows(coefficients) -> list[list[str]]:
+    """The special-case table recomputed in sympy's QQ(ε): the textbook recurrence with the ε
+    rule and the auxiliary-polynomial rule (Gantmacher, 1959, ch. XV; from memory)."""
+    n = len(coefficients) - 1
+    width = n // 2 + 1
+    entries = [FIELD(sp.Rational(Fraction(c).numerator, Fraction(c).denominator)) for c in coefficients]
+    zero = FIELD(0)
+    rows = [entries[0::2] + [zero] * (width - len(entries[0::2])),
+            entries[1::2] + [zero] * (width - len(entries[1::2]))][: n + 1]
+    for m in range(1, n + 1):
+        if m >= 2:
+            a, b = rows[m - 2], rows[m - 1]
+            rows.append([(b[0] * a[j + 1] - a[0] * b[j + 1]) / b[0] for j in range(width - 1)] + [zero])
+        if all(e == 0 for e in rows[m]):
+            k = n - m + 1
+            rows[m] = [(k - 2 * j) * rows[m - 1][j] for j in range(k // 2 + 1)]
+            rows[m] += [zero] * (width - len(rows[m]))
+        if rows[m][0] == 0:
+            rows[m][0] = FIELD_EPS
+    out = []
+    for i, row in enumerate(rows):
+        texts = []
+        for e in row[: (n - i) // 2 + 1]:
+            value = e.as_expr()
+            texts.append(str(value) if not value.is_Rational else str(Fraction(int(value.p), int(value.q))))
+        out.append(texts)
+    return out
+
+
+def roots_of_unity_counts(n: int, offset: int, denominator: int, skip_one: bool = False):
+    """Counts of the roots e^(2πi t), t = (2k + offset) / (2 * denominator), k < denominator:
+    Re > 0 exactly when t mod 1 lies in [0, 1/4) or (3/4, 1) (de Moivre; common practice,
+    no source). s^n + 1 has offset 1, s^n - 1 offset 0; ``skip_one`` leaves out the root 1."""
+    right = axis = left = 0
+    for k in range(denominator):
+        t = Fraction(2 * k + offset, 2 * denominator) % 1
+        if skip_one and t == 0:
+            continue
+        if t in (Fraction(1, 4), Fraction(3, 4)):
+            axis += 1
+        elif t < Fraction(1, 4) or t > Fraction(3, 4):
+            right += 1
+        else:
+            left += 1
+    return right, axis, left
+
+
+sparse_special = st.lists(st.sampled_from([0, 0, 0, 1, -1, 2, -3]), min_size=2, max_size=13).filter(
+    lambda c: c[0] != 0 and any(c[1:]))
+
+
+@settings(max_examples=60)
+@given(sparse_special)
+@example([1, 0, 0, 0, 0, 0, 0, 0, 1])
+@example([1, 1, 1, 1, 1, 1, 1, 1, 1])
+@example([1, 2, 3, 6, 5, 3])
+def test_special_tables_equal_the_recurrence_in_sympys_field(c):
+    """Tables with zero rows and ε rows are entry for entry those of the recurrence in QQ(ε)."""
+    table = routh_table(c)
+    assert table.omitted_rows == 0
+    shown = [[format_entry(e) for e in row.entries] for row in table.rows]
+    assert shown == field_rows(c)  # sympy's field of rational functions (Meurer et al., 2017)
+
+
+@settings(max_examples=60)
+@given(sparse_special)
+def test_special_case_counts_of_sparse_polynomials_match_sympy(c):
+    """Sparse polynomials (zero rows, ε rows, root pairs) count like sympy's root isolation."""
+    table = routh_table(c)
+    assert counts_of(table) == isolated_counts(c)  # sympy (Meurer et al., 2017)
+    if not table.counted_by_factors:  # the ε table and the Cauchy-index count agree
+        assert table.sign_changes == table.roots.open_right
+
+
+@pytest.mark.parametrize("n", [7, 40, 199, 200])
+def test_sparse_polynomials_of_high_degree_count_as_roots_of_unity(n):
+    """s^n + 1, s^n - 1 and 1 + s + ... + s^n count as the roots of unity they have as roots."""
+    assert counts_of(routh_table([1] + [0] * (n - 1) + [1])) == roots_of_unity_counts(n, 1, n)
+    assert counts_of(routh_table([1] + [0] * (n - 1) + [-1])) == roots_of_unity_counts(n, 0, n)
+    ones = roots_of_unity_counts(n, 0, n + 1, skip_one=True)  # (s^(n+1) - 1) / (s - 1)
+    assert counts_of(routh_table([1] * (n + 1))) == ones
+    assert counts_of(routh_table(expand((S**2 + 1) ** (n // 2)))) == (0, 2 * (n // 2), 0)
+
+
+def test_a_table_whose_epsilon_entries_outgrow_the_bound_is_cut_and_says_so():
+    """s^200 + 1 shows its top rows only; the counts come from the Cauchy index, and say so."""
+    table = routh_table([1] + [0] * 199 + [1])
+    assert 0 < table.omitted_rows < 200
+    assert len(table.rows) == len(table.first_column_signs) == 201 - table.omitted_rows
+    assert table.rows[-1].power == table.omitted_rows
+    assert counts_of(table) == (100, 0, 100)  # roots exp(iπ(2k+1)/200) (de Moivre)
+    assert "left out" in table.count_note
+    data = table.as_dict()
+    assert data["omitted_rows"] == table.omitted_rows
+    assert len(data["rows"]) == 201 - table.omitted_rows
+
+
+def test_a_small_table_with_epsilon_rows_is_complete():
+    """Below the display bound (s^16 + 1) every row is shown and nothing is left out."""
+    table = routh_table([1] + [0] * 15 + [1])
+    assert table.omitted_rows == 0
+    assert [r.power for r in table.rows] == list(range(16, -1, -1))
+    assert table.as_dict()["omitted_rows"] == 0

@@ -17,7 +17,7 @@ import sympy as sp
 from sympy.polys.matrices import DomainMatrix
 
 from ..exact.hurwitz import hurwitz_matrix
-from ..exact.numbers import decimal_text, format_fraction, short_between, to_float
+from ..exact.numbers import approx_text, format_fraction, short_between, to_float
 from ..exact.polynomials import MultiPoly, as_intervals
 from ..model.family import UncertainPolynomial
 from .scaling import Scaling
@@ -70,7 +70,7 @@ class RootBound:
     @staticmethod
     def rational(value: Fraction) -> RootBound:
         """A rational r*."""
-        return RootBound(value, value, format_fraction(value), decimal_text(value))
+        return RootBound(value, value, format_fraction(value), approx_text(value, 15))
 
 
 def first_positive_root(polys: Sequence[sp.Poly], cap: Fraction) -> RootBound | None:
@@ -99,7 +99,7 @@ def first_positive_root(polys: Sequence[sp.Poly], cap: Fraction) -> RootBound | 
     lo_f, hi_f, poly = best
     if lo_f == hi_f:
         return RootBound.rational(lo_f)
-    return RootBound(lo_f, hi_f, _root_text(poly, lo_f, hi_f), decimal_text((lo_f + hi_f) / 2))
+    return RootBound(lo_f, hi_f, _root_text(poly, lo_f, hi_f), approx_text((lo_f + hi_f) / 2, 15))
 
 
 def _root_text(poly: sp.Poly, lo: Fraction, hi: Fraction) -> str:
@@ -109,7 +109,7 @@ def _root_text(poly: sp.Poly, lo: Fraction, hi: Fraction) -> str:
     try:
         factors = poly.factor_list()[1]
     except OverflowError:  # sympy's factoring meets numbers beyond floats: name the root by its value
-        return f"root of {sp.sstr(poly.as_expr())} near {decimal_text((lo + hi) / 2)}"
+        return f"root of {sp.sstr(poly.as_expr())} near {approx_text((lo + hi) / 2, 15)}"
     for factor, _ in factors:
         if factor.count_roots(low, high) == 0:
             continue
@@ -120,8 +120,8 @@ def _root_text(poly: sp.Poly, lo: Fraction, hi: Fraction) -> str:
                         return sp.sstr(sp.nsimplify(root))
             except OverflowError:  # radicals of numbers beyond floats: the value names it
                 pass
-        return f"root of {sp.sstr(factor.as_expr())} near {decimal_text((lo + hi) / 2)}"
-    return f"root near {decimal_text((lo + hi) / 2)}"
+        return f"root of {sp.sstr(factor.as_expr())} near {approx_text((lo + hi) / 2, 15)}"
+    return f"root near {approx_text((lo + hi) / 2, 15)}"
 
 
 def substitute_expressions(poly: MultiPoly, values: Sequence[sp.Expr]) -> sp.Expr:

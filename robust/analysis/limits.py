@@ -17,7 +17,7 @@ from fractions import Fraction
 
 import sympy as sp
 
-from ..exact.numbers import decimal_text, format_fraction, short_between
+from ..exact.numbers import approx_text, format_fraction, short_between
 from ..exact.polynomials import MultiPoly
 from ..model.family import sign_over_box
 from .crossings import first_positive_root, path_expressions, substitute_expressions
@@ -61,13 +61,13 @@ class ScaleEnd:
 
     def sentence(self, what: str = "the family") -> str:
         """The end in plain words (``what`` names the scaled tolerances)."""
-        at = f"x{decimal_text(self.scale, 6)}"
+        at = f"x{approx_text(self.scale, 6)}"
         names = ", ".join(self.parameters)
         text = {
             LimitKind.CROSSING: f"a root reaches the imaginary axis {'at' if self.exact else 'near'} {at}"
                                 + (f" (driven by {names})" if names else ""),
             LimitKind.PHYSICAL_LIMIT: "stable until " + (", ".join(
-                f"{n} reaches its physical limit {decimal_text(v, 6)}" for n, v in zip(self.parameters, self.values,
+                f"{n} reaches its physical limit {approx_text(v, 6)}" for n, v in zip(self.parameters, self.values,
                                                                               strict=True))
                 if self.values else f"{names} reaches its physical limit") + f" at {at}; no root crosses before",
             LimitKind.DEGREE_LOSS: f"stable until the leading coefficient reaches zero at {at} "

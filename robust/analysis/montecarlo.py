@@ -3,15 +3,24 @@
 A complement to the worst case, never a replacement for it. Parameters are drawn (seeded)
 uniformly over their range, or normally about nominal with the tolerance as 3 sigma and
 clipped to the range. The whole batch is screened with a vectorised floating-point Routh
-recurrence; members whose float decision is not clear-cut (a first-column entry within a
-safety factor of the rounding error) are re-decided exactly at the drawn point (a float is
-an exact rational). The stable fraction comes with a Clopper-Pearson interval (Clopper &
-Pearson, "The use of confidence or fiducial limits illustrated in the case of the
-binomial", Biometrika 26, 1934).
+recurrence; members whose float decision is not clear-cut are re-decided exactly at the
+drawn point (a float is an exact rational). The stable fraction comes with a Clopper-Pearson
+interval (Clopper & Pearson, "The use of confidence or fiducial limits illustrated in the
+case of the binomial", Biometrika 26, 1934).
+
+Numbers of any size. A parameter beyond a comfortable float range (2^-64 .. 2^64) is
+drawn as a mantissa times a fixed power of two, and every coefficient is evaluated as a
+mantissa times its own power of two (the largest of its terms), so neither the draws nor
+the coefficients overflow or underflow. The screen trusts a row only when it can bound the
+float error: the coefficient sums carry an error bound (cancellation shows, and so does a
+term too small to be carried, whose largest possible size is added to the bound); a
+monomial that could underflow, an overflow, or a balanced coefficient that vanishes all
+send the row to the exact test.
 """
 
 from __future__ import annotations
 
+import math
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -20,11 +29,15 @@ from fractions import Fraction
 import numpy as np
 from scipy import stats
 
+from ..exact.numbers import binary_exponent, format_fraction, to_float
 from ..exact.routh import is_hurwitz
 
 __all__ = ["YieldResult", "draw_parameters", "estimate_yield", "float_routh_screen"]
 
 _CHUNK = 100_000
+_EPS = float(np.finfo(float).eps)
+_TINY = float(np.finfo(float).tiny)
+_COMFORT = 64  # parameters within 2^-64 .. 2^64 are drawn as they are
 
 
 @dataclass(frozen=True, slots=True)
@@ -39,6 +52,8 @@ class YieldResult:
     exact_rechecks: int
     unstable_ranges: tuple[tuple[str, float, float], ...]
     seconds: float
+    #: the same ranges exactly (the floats above are +-inf beyond the float range)
+    unstable_ranges_exact: tuple[tuple[str, Fraction, Fraction], ...] = ()
 
     @property
     def fraction(self) -> float:
@@ -56,17 +71,34 @@ class YieldResult:
             "interval": list(self.interval),
             "seed": self.seed,
             "exact_rechecks": self.exact_rechecks,
-            "unstable_ranges": {n: [lo, hi] for n, lo, hi in self.unstable_ranges},
+            "unstable_ranges": {n: [_finite_or_none(lo), _finite_or_none(hi)]
+                                for n, lo, hi in self.unstable_ranges},
+            "unstable_ranges_exact": {n: [format_fraction(lo), format_fraction(hi)]
+                                      for n, lo, hi in self.unstable_ranges_exact},
             "seconds": round(self.seconds, 3),
         }
 
 
-def draw_parameters(case, n: int, rng: np.random.Generator) -> np.ndarray:
-    """(n, k) parameter draws per the case's distributions, inside the box."""
-    family = case.family
+def _finite_or_none(x: float) -> float | None:
+    return x if math.isfinite(x) else None
+
+
+def _scales(case) -> np.ndarray:
+    """Per parameter, the power of two its draws are divided by (0 inside the comfort range)."""
+    out = []
+    for name in case.family.names:
+        p = case.parameter(name)
+        e = binary_exponent(max(abs(p.low), abs(p.high)))
+        out.append(0 if -_COMFORT < e < _COMFORT else e)
+    return np.array(out, dtype=np.int64)
+
+
+def _draw_scaled(case, n: int, rng: np.random.Generator, scales: np.ndarray) -> np.ndarray:
+    """(n, k) mantissas m of the draws: a draw is m * 2^scales exactly."""
     columns = []
-    for p in (case.parameter(name) for name in family.names):
-        lo, hi, nom = float(p.low), float(p.high), float(p.nominal)
+    for p, e in zip((case.parameter(name) for name in case.family.names), scales, strict=True):
+        unit = Fraction(2) ** int(e)
+        lo, hi, nom = (to_float(x / unit) for x in (p.low, p.high, p.nominal))
         if p.distribution == "normal" and hi > lo:
             sigma = max(hi - nom, nom - lo) / 3.0
             columns.append(np.clip(rng.normal(nom, sigma, n), lo, hi))
@@ -75,39 +107,141 @@ def draw_parameters(case, n: int, rng: np.random.Generator) -> np.ndarray:
     return np.stack(columns, axis=1)
 
 
-def float_routh_screen(coefficients: np.ndarray, safety: float = 1e6) -> tuple[np.ndarray, np.ndarray]:
+def draw_parameters(case, n: int, rng: np.random.Generator) -> np.ndarray:
+    """(n, k) parameter draws per the case's distributions, inside the box (floats; +-inf
+    for a parameter beyond the float range)."""
+    return _draw_scaled(case, n, rng, np.zeros(len(case.family.names), dtype=np.int64))
+
+
+def _exact(mantissa: float, scale: int) -> Fraction:
+    """The exact value of a scaled draw (a float is an exact binary rational)."""
+    return Fraction(float(mantissa)) * Fraction(2) ** int(scale)
+
+
+def _exact_point(row: np.ndarray, scales: np.ndarray) -> list[Fraction]:
+    return [_exact(m, e) for m, e in zip(row, scales, strict=True)]
+
+
+@dataclass(frozen=True, slots=True)
+class _FloatForm:
+    """The coefficients for the screen: a_j = 2^scale[j] * sum_t weights[j, t] * monomial_t(m)
+    with the monomials of the draw mantissas m."""
+
+    powers: np.ndarray  # (T, k) exponents of the distinct monomials
+    weights: np.ndarray  # (n + 1, T) float mantissa weights, each term below 2 in size
+    scale: np.ndarray  # (n + 1,) binary exponent of each coefficient
+    max_degrees: np.ndarray  # (k,) largest exponent of each parameter
+    terms: int  # most terms in one coefficient
+    lost: np.ndarray  # (n + 1,) log2 of a bound on the terms left out (too small), or -inf
+
+
+def _float_form(case, scales: np.ndarray) -> _FloatForm:
+    family = case.family
+    # log2 of the largest draw mantissa of each parameter (|m| < 2 for a scaled one)
+    sizes = [binary_exponent(max(abs(case.parameter(n).low), abs(case.parameter(n).high))) + 1 - int(e)
+             for n, e in zip(family.names, scales, strict=True)]
+    monomials = sorted({e for c in family.coefficients for e, _ in c.terms})
+    index = {e: t for t, e in enumerate(monomials)}
+    weights = np.zeros((len(family.coefficients), len(monomials)))
+    scale = np.zeros(len(family.coefficients))
+    lost = np.full(len(family.coefficients), -math.inf)
+    for j, coefficient in enumerate(family.coefficients):
+        exponents = {}
+        for e, c in coefficient.terms:
+            b = binary_exponent(c)
+            value = Fraction(int(c.numerator), int(c.denominator))
+            exponents[e] = (b + int(np.dot(e, scales)), to_float(value / Fraction(2) ** b))
+        top = max((x for x, _ in exponents.values()), default=0)
+        scale[j] = top
+        for e, (x, mantissa) in exponents.items():
+            if x - top < -1000:  # too small to carry: bound it instead (|mantissa| < 2)
+                bound = x - top + 1 + int(np.dot(e, sizes)) + math.log2(len(exponents))
+                lost[j] = max(lost[j], bound)
+                continue
+            weights[j, index[e]] = math.ldexp(mantissa, x - top)
+    powers = np.array(monomials, dtype=float).reshape(len(monomials), -1)
+    degrees = powers.max(axis=0) if len(monomials) else np.zeros(len(family.names))
+    terms = max((len(c.terms) for c in family.coefficients), default=1)
+    return _FloatForm(powers, weights, scale, degrees, terms, lost)
+
+
+def _coefficients(form: _FloatForm, mantissas: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(mantissas of a_n .. a_0, their relative error bound, rows whose monomials cannot
+    underflow); a row is exact zero where its bound is 0."""
+    with np.errstate(all="ignore"):
+        if form.powers.shape[1] == 0:
+            monomials = np.ones((mantissas.shape[0], form.powers.shape[0]))
+        else:
+            monomials = np.prod(mantissas[:, None, :] ** form.powers[None, :, :], axis=2)
+        values = monomials @ form.weights.T
+        if (mantissas >= 0).all() and (form.weights >= 0).all():
+            sizes = values  # no term can cancel another
+        else:
+            sizes = np.abs(monomials) @ np.abs(form.weights).T
+        # a monomial's relative error is below (degree + 1) eps, a sum of T terms adds T eps
+        bound = (float(form.max_degrees.sum()) + form.terms + 2) * 2 * _EPS * sizes
+        bound = bound + np.exp2(form.lost)[None, :]  # the terms too small to carry
+        relative = np.where(bound == 0, 0.0, bound / np.abs(values))
+        logs = np.log2(np.where(mantissas == 0, 1.0, np.abs(mantissas)))
+        deep = logs @ form.max_degrees  # log2 of the smallest monomial a row can have
+    return values, relative, deep > -1000
+
+
+def float_routh_screen(coefficients: np.ndarray, safety: float = 1e6,
+                       exponents: np.ndarray | None = None,
+                       input_error: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """Vectorised float Routh test of each row (highest power first).
 
-    Returns (stable, clear): ``clear`` is False where some first-column entry is too small
-    relative to the magnitudes that produced it for its sign to be trusted; those rows must
-    be re-decided exactly.
+    Parameters
+    ----------
+    coefficients
+        (N, n + 1) rows, or their mantissas when ``exponents`` is given.
+    exponents
+        Optional (n + 1,) binary exponents: coefficient j of a row is
+        ``coefficients[:, j] * 2**exponents[j]`` (values beyond the float range).
+    input_error
+        Optional (N,) relative error bound of each row's coefficients (default: rounding).
+
+    Returns
+    -------
+    (stable, clear)
+        ``clear`` is False where some first-column entry is too small relative to the
+        magnitudes that produced it for its sign to be trusted, or where a coefficient
+        vanished in the balancing below; those rows must be re-decided exactly.
     """
     c = np.array(coefficients, dtype=float)
     count, width = c.shape
     n = width - 1
+    scale = np.zeros(width) if exponents is None else np.asarray(exponents, dtype=float)
     sign = np.sign(c[:, :1])
     sign[sign == 0] = 1
     c = c * sign
     stable = np.all(c > 0, axis=1)
+    clear = np.isfinite(c).all(axis=1)
     # balance the coefficients: s = w z with w = (a_0 / a_n)^(1/n) scales the roots by 1/w
-    # and keeps the signs of their real parts; then normalise each row
+    # and keeps the signs of their real parts; then normalise each row (in logarithms, so
+    # that coefficients beyond the float range balance too)
     with np.errstate(all="ignore"):
-        logs = np.log(np.abs(np.where(c == 0, 1.0, c)))
+        logs = np.log(np.abs(np.where(c == 0, 1.0, c))) + scale[None, :] * math.log(2)
         w = (logs[:, -1] - logs[:, 0]) / max(n, 1)
         w[~np.isfinite(w)] = 0.0
         powers = np.arange(n, -1, -1)[None, :]  # the power of s in each column
         logs = logs + w[:, None] * powers
-        c = np.where(c == 0, 0.0, np.sign(c) * np.exp(logs - np.max(logs, axis=1, keepdims=True)))
-    eps = np.finfo(float).eps * safety
-    clear = np.ones(count, dtype=bool)
+        balanced = np.where(c == 0, 0.0, np.sign(c) * np.exp(logs - np.max(logs, axis=1, keepdims=True)))
+    relative = np.full(count, _EPS) if input_error is None else np.maximum(input_error, _EPS)
     if n <= 2:
-        return stable, clear
+        return stable, clear & (relative < 0.5)  # the signs alone decide
+    # a coefficient that vanished (or went subnormal) in the balancing is not the row's own
+    clear &= ~((c != 0) & (np.abs(balanced) < _TINY)).any(axis=1)
+    c = balanced
+    eps = _EPS * safety
     cols = n // 2 + 1
     a = np.zeros((count, cols))
     b = np.zeros((count, cols))
     a[:, : len(range(0, width, 2))] = c[:, 0::2]
     b[:, : len(range(1, width, 2))] = c[:, 1::2]
-    a_mag, b_mag = np.abs(a), np.abs(b)
+    # errors in units of eps: the coefficients' own bound, then the recurrence's
+    a_mag, b_mag = np.abs(a) * (relative / _EPS)[:, None], np.abs(b) * (relative / _EPS)[:, None]
     with np.errstate(all="ignore"):
         for _ in range(2, n + 1):
             b0 = b[:, :1]
@@ -143,21 +277,24 @@ def estimate_yield(case, n: int = 100_000, seed: int = 0, confidence: float = 0.
     started = time.perf_counter()
     rng = np.random.default_rng(seed)
     family = case.family
+    scales = _scales(case)
+    form = _float_form(case, scales)
     stable_total = 0
     rechecks = 0
     k = len(family.names)
-    lo_unstable = np.full(k, np.inf)
+    lo_unstable = np.full(k, np.inf)  # mantissas: the draws are mantissa * 2^scales
     hi_unstable = np.full(k, -np.inf)
     done = 0
     while done < n:
         size = min(_CHUNK, n - done)
-        draws = draw_parameters(case, size, rng)
-        coeffs = family.coefficients_float(draws)
-        stable, clear = float_routh_screen(coeffs)
+        draws = _draw_scaled(case, size, rng, scales)
+        values, relative, deep_enough = _coefficients(form, draws)
+        worst = relative.max(axis=1)
+        stable, clear = float_routh_screen(values, exponents=form.scale, input_error=worst)
+        clear &= deep_enough & (worst < 1e-6)
         for idx in np.flatnonzero(~clear):
             rechecks += 1
-            point = [Fraction(float(x)) for x in draws[idx]]
-            stable[idx] = is_hurwitz(family.coefficients_at(point))
+            stable[idx] = is_hurwitz(family.coefficients_at(_exact_point(draws[idx], scales)))
         stable_total += int(stable.sum())
         bad = draws[~stable]
         if len(bad):
@@ -168,7 +305,8 @@ def estimate_yield(case, n: int = 100_000, seed: int = 0, confidence: float = 0.
             progress(done, n)
     test = stats.binomtest(stable_total, n)
     ci = test.proportion_ci(confidence_level=confidence, method="exact")
-    ranges = tuple((name, float(lo_unstable[i]), float(hi_unstable[i]))
-                   for i, name in enumerate(family.names) if np.isfinite(lo_unstable[i]))
+    exact = tuple((name, _exact(lo_unstable[i], scales[i]), _exact(hi_unstable[i], scales[i]))
+                  for i, name in enumerate(family.names) if np.isfinite(lo_unstable[i]))
+    ranges = tuple((name, to_float(lo), to_float(hi)) for name, lo, hi in exact)
     return YieldResult(n, stable_total, seed, confidence, (float(ci.low), float(ci.high)), rechecks,
-                       ranges, time.perf_counter() - started)
+                       ranges, time.perf_counter() - started, exact)

@@ -37,10 +37,16 @@ def batch_worst_angle(coefficients: np.ndarray) -> np.ndarray:
     n = width - 1
     out = np.ones(count)
     lead = coefficients[:, 0]
-    ok = np.abs(lead) > 0
-    if n == 0 or not ok.any():
-        return np.where(ok, -1.0, 1.0)
-    monic = coefficients[ok] / lead[ok, None]
+    with np.errstate(all="ignore"):
+        ok = (np.abs(lead) > 0) & np.isfinite(coefficients).all(axis=1)
+        if n == 0 or not ok.any():
+            return np.where(ok, -1.0, 1.0)
+        monic = coefficients[ok] / lead[ok, None]
+    finite = np.isfinite(monic).all(axis=1)  # a quotient may still overflow
+    ok[np.flatnonzero(ok)[~finite]] = False
+    monic = monic[finite]
+    if not ok.any():
+        return out
     companion = np.zeros((monic.shape[0], n, n))
     companion[:, 0, :] = -monic[:, 1:]
     if n > 1:
@@ -98,6 +104,8 @@ def search_witness(
     k = len(box.names)
     lo = np.array([to_float(a) for a in box.low])
     width = np.array([to_float(b - a) for a, b in box.intervals])
+    if not (np.isfinite(lo).all() and np.isfinite(width).all() and np.isfinite(lo + width).all()):
+        return None  # a box beyond the float range: the exact methods decide it alone
     t = rng.random((samples, k))
     t[:, width == 0] = 0.0
     scores = batch_worst_angle(_coefficients_many(family, lo + t * width))

@@ -12,9 +12,10 @@ read back through their shortest ``repr``, which is the decimal the user typed.
 
 from __future__ import annotations
 
+import decimal
 import math
 import re
-from decimal import Context, Decimal
+import sys
 from fractions import Fraction
 from numbers import Rational
 
@@ -24,13 +25,17 @@ from ..errors import InputError
 
 __all__ = [
     "ENGINEERING_SUFFIXES",
+    "approx_text",
+    "binary_exponent",
     "divexact",
     "format_fraction",
     "from_mpq",
+    "gcd",
+    "integer_text",
     "mpq",
     "mpz",
     "parse_number",
-    "decimal_text",
+    "percent_text",
     "short_between",
     "to_float",
     "to_fraction",
@@ -42,6 +47,8 @@ mpz = gmpy2.mpz
 mpq = gmpy2.mpq
 #: Exact division of GMP integers known to divide (Bareiss steps).
 divexact = gmpy2.divexact
+#: Greatest common divisor of GMP integers (non-negative).
+gcd = gmpy2.gcd
 
 
 def to_mpq(value: Fraction | int) -> object:
@@ -67,7 +74,8 @@ ENGINEERING_SUFFIXES: dict[str, Fraction] = {
     "G": Fraction(10**9),
 }
 
-_NUMBER = re.compile(r"[+-]?(?:\d+(?:_\d+)*(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
+# ASCII digits only: other digits (an Arabic-Indic three) are not numbers here
+_NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:_[0-9]+)*(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?")
 _MAX_EXPONENT = 400  # decimal exponents beyond this are typos, not component values
 
 
@@ -110,10 +118,25 @@ def parse_number(text: str, what: str = "number", suffixes: bool = True) -> Frac
     if not match:
         raise InputError(what, "not a number", expected, text)
     mantissa, _, exponent = raw.replace("_", "").lower().partition("e")
-    if exponent and abs(int(exponent)) > _MAX_EXPONENT:
+    digits = exponent.lstrip("+-").lstrip("0")
+    if len(digits) > 3 or (digits and int(digits) > _MAX_EXPONENT):
         raise InputError(what, "decimal exponent out of range", f"|exponent| <= {_MAX_EXPONENT}", text)
-    value = Fraction(mantissa) * (Fraction(10) ** int(exponent or 0))
+    value = _decimal(mantissa) * (Fraction(10) ** int(exponent or 0))
     return value * scale
+
+
+def _decimal(text: str) -> Fraction:
+    """The exact value of a decimal such as ``-12.50`` of any length (GMP reads the digits:
+    Python's own int() refuses more than 4,300 of them)."""
+    sign = -1 if text.startswith("-") else 1
+    whole, _, fraction = text.lstrip("+-").partition(".")
+    digits = (whole + fraction).lstrip("0") or "0"
+    return Fraction(sign * int(mpz(digits)), 10 ** len(fraction))
+
+
+def integer_text(value: int) -> str:
+    """Decimal text of an integer of any size (Python's str() refuses over 4,300 digits)."""
+    return str(value) if -(10**18) < value < 10**18 else mpz(value).digits()
 
 
 def to_fraction(value: object, what: str = "number") -> Fraction:
@@ -139,9 +162,52 @@ def to_fraction(value: object, what: str = "number") -> Fraction:
     raise InputError(what, f"a {type(value).__name__} is not a number", "a number", value)
 
 
+def to_float(value: Fraction | int) -> float:
+    """The nearest float, or +-inf beyond the float range (0.0 or a subnormal below it).
+
+    Never raises: for display and float guidance only, never for a decision.
+    """
+    try:
+        return float(value)
+    except OverflowError:
+        return math.inf if value > 0 else -math.inf
+
+
+def approx_text(value, digits: int = 6) -> str:
+    """``value`` with ``digits`` significant digits, as ``f"{x:.{digits}g}"`` would write it,
+    for an exact number of any size ("1e+400" where a float would overflow)."""
+    if value is None:
+        return "-"
+    f = value if isinstance(value, float) else to_float(value)
+    if isinstance(value, float) or (math.isfinite(f) and (f == 0) == (value == 0)
+                                    and (f == 0 or abs(f) >= sys.float_info.min)):
+        return f"{f:.{digits}g}"
+    with decimal.localcontext() as context:
+        context.prec = digits
+        number = decimal.Decimal(int(value.numerator)) / decimal.Decimal(int(value.denominator))
+    return f"{number.normalize():.{digits}g}"  # 9.9e+399, not 9.90000e+399, as floats print
+
+
+def percent_text(value, digits: int = 2) -> str:
+    """``value`` as a percentage with ``digits`` decimals, as ``f"{x:.{digits}%}"``, any size."""
+    f = value if isinstance(value, float) else to_float(value)
+    if math.isfinite(f):
+        return f"{f:.{digits}%}"
+    return approx_text(value * 100, 6) + "%"
+
+
+def binary_exponent(value) -> int:
+    """e with 2^(e-1) < |value| < 2^(e+1) for a non-zero rational (0 for zero): the scale of a
+    number of any size, exactly."""
+    if not value:
+        return 0
+    return int(abs(value.numerator)).bit_length() - int(value.denominator).bit_length()
+
+
 def format_fraction(value: Fraction) -> str:
-    """Exact text of a rational: ``"3"``, ``"-7/20"``."""
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
+    """Exact text of a rational: ``"3"``, ``"-7/20"`` (of any size)."""
+    top = integer_text(value.numerator)
+    return top if value.denominator == 1 else f"{top}/{integer_text(value.denominator)}"
 
 
 def short_between(a: Fraction, b: Fraction) -> Fraction | None:
@@ -155,27 +221,3 @@ def short_between(a: Fraction, b: Fraction) -> Fraction | None:
             return x
     return None
 
-
-def to_float(value: object) -> float:
-    """The nearest float, never raising: beyond the float range it is +-inf (below it, 0).
-
-    For guidance and display only (a search, a screen, a rounded number in a sentence);
-    decisions never use it.
-    """
-    try:
-        return float(value)  # type: ignore[arg-type]
-    except OverflowError:
-        return math.inf if value > 0 else -math.inf  # type: ignore[operator]
-
-
-def decimal_text(value: Fraction, digits: int = 15) -> str:
-    """``value`` rounded to ``digits`` significant digits, as decimal text of any size
-    (``"1.5e+400"`` where a float would overflow)."""
-    context = Context(prec=digits, Emax=10**9, Emin=-(10**9))
-    number = context.divide(Decimal(value.numerator), Decimal(value.denominator))
-    if abs(number.adjusted()) < 16:
-        return f"{number:g}"
-    mantissa, _, exponent = f"{number:e}".partition("e")
-    if "." in mantissa:
-        mantissa = mantissa.rstrip("0").rstrip(".")
-    return f"{mantissa}e{exponent}"

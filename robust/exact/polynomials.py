@@ -2,8 +2,8 @@
 
 A coefficient of the characteristic polynomial is a :class:`MultiPoly`: a map from exponent
 tuples (one exponent per parameter, in the family's parameter order) to exact rationals.
-Arithmetic inside uses GMP rationals (``mpq`` of :mod:`robust.exact.numbers`) (exact, and far faster than ``Fraction``); results
-leave as ``Fraction``.
+Arithmetic inside uses GMP rationals (``mpq`` of :mod:`robust.exact.numbers`): exact, and far
+faster than ``Fraction``; results leave as ``Fraction``.
 
 Bounds over a box use exact rational interval arithmetic (Moore, "Interval Analysis",
 1966): sound outer bounds, made exact where the polynomial is monotone in a parameter over
@@ -20,7 +20,7 @@ from itertools import product
 
 import numpy as np
 
-from .numbers import from_mpq, mpq, to_float, to_mpq
+from .numbers import format_fraction, from_mpq, mpq, to_float, to_mpq
 
 __all__ = ["Bound", "MultiPoly", "interval_power"]
 
@@ -305,7 +305,7 @@ class MultiPoly:
             factors = [n if k == 1 else f"{n}^{k}" for n, k in zip(names, e, strict=True) if k]
             cf = _f(c)
             mag = abs(cf)
-            coeff = str(mag.numerator) if mag.denominator == 1 else f"{mag.numerator}/{mag.denominator}"
+            coeff = format_fraction(mag)  # of any size
             body = "*".join(([coeff] if (mag != 1 or not factors) else []) + factors)
             parts.append(("-" if cf < 0 else "+") + " " + body)
         text = " ".join(parts)

@@ -28,12 +28,13 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
+from itertools import pairwise
 from math import lcm
 
-import sympy as sp
-
 from ..errors import InputError
-from .numbers import divexact, format_fraction, mpz, to_fraction
+from .epsilon import EPSILON_ENTRY, EpsilonFraction, is_zero, routh_step, sign_at_zero_plus, size, times
+from .numbers import divexact, format_fraction, from_mpq, mpq, mpz, to_fraction, to_mpq
+from .rootcount import count_roots
 
 __all__ = [
     "RootCounts",
@@ -47,9 +48,9 @@ __all__ = [
     "shift_coefficients",
 ]
 
-EPSILON = sp.Symbol("ε", positive=True)
-_S = sp.Symbol("s")
-Entry = Fraction | sp.Expr
+#: The small positive ε of the zero-leading-entry rule, as a table entry.
+EPSILON = EPSILON_ENTRY
+Entry = Fraction | EpsilonFraction
 
 
 @dataclass(frozen=True, slots=True)
@@ -123,10 +124,13 @@ class RouthTable:
     special_rows
         Rows where the epsilon or the auxiliary-polynomial rule was applied.
     first_column_signs
-        +1 / -1 per row, top to bottom (epsilon entries by their limit sign).
+        +1 / -1 per row shown, top to bottom (epsilon entries by their limit sign).
     roots
         Counts in the open right half-plane, on the axis and in the open left half-plane,
         relative to the shifted line.
+    omitted_rows
+        Rows at the bottom left out because their entries in ε outgrew the display bound
+        (0 for a complete table); the counts then come from :mod:`robust.exact.rootcount`.
     """
 
     coefficients: tuple[Fraction, ...]
@@ -136,10 +140,11 @@ class RouthTable:
     roots: RootCounts
     _integer_rows: tuple[tuple[int, ...], ...] | None  # fraction-free rows (gmpy2 integers)
     _scales: Fraction | None  # the integer polynomial is this multiple of `coefficients`
-    _exact_rows: tuple[tuple[Entry, ...], ...] | None
+    _exact_rows: tuple[tuple[object, ...], ...] | None  # mpq and EpsilonFraction entries
     #: True when ``roots`` comes from p = q * gcd(p(s), p(-s)) because an ε row met a root
     #: pair r, -r; the first column of this table then need not show the counts.
     counted_by_factors: bool = False
+    omitted_rows: int = 0
 
     @property
     def degree(self) -> int:
@@ -151,7 +156,7 @@ class RouthTable:
         """The rows, top (power n) to bottom (power 0), with exact entries."""
         n = self.degree
         if self._exact_rows is not None:
-            raw = self._exact_rows
+            raw = tuple(tuple(_entry_out(e) for e in row) for row in self._exact_rows)
         else:
             assert self._integer_rows is not None and self._scales is not None
             raw = _true_rows(self._integer_rows, self._scales)
@@ -168,6 +173,18 @@ class RouthTable:
     def sign_changes(self) -> int:
         """Sign changes down the first column."""
         return _count_changes(self.first_column_signs)
+
+    @property
+    def count_note(self) -> str:
+        """Where the counts come from when not from this table's first column ("" otherwise)."""
+        how = ("the counts come from p = q*g, g = gcd(p(s), p(-s)): q by the Cauchy index of its "
+               "even and odd parts, the even and odd square-free factors of g by Sturm sequences")
+        if self.omitted_rows:
+            return (f"rows s^{self.omitted_rows - 1} .. s^0 left out: their entries in ε outgrow "
+                    f"the display bound; {how}")
+        if self.counted_by_factors:
+            return f"an ε row met roots symmetric about the origin, where the ε rule alone is unsound; {how}"
+        return ""
 
     @property
     def is_hurwitz(self) -> bool:
@@ -190,6 +207,7 @@ class RouthTable:
             "special_rows": [s.as_dict() for s in self.special_rows],
             "hurwitz": self.is_hurwitz,
             "counted_by_factors": self.counted_by_factors,
+            "omitted_rows": self.omitted_rows,
         }
 
 
@@ -203,7 +221,7 @@ def _true_rows(integer_rows, multiple: Fraction) -> tuple[tuple[Fraction, ...], 
 
 
 def format_entry(entry: Entry) -> str:
-    """Exact text of a table entry: ``"7/2"``, or an expression in ε."""
+    """Exact text of a table entry: ``"7/2"``, or a rational function of ε."""
     if isinstance(entry, Fraction):
         return format_fraction(entry)
     return str(entry)
@@ -280,7 +298,7 @@ def _integer_coefficients(coefficients: Sequence[Fraction]) -> list[int]:
 
 
 def _count_changes(signs: Sequence[int]) -> int:
-    return sum(1 for a, b in zip(signs, signs[1:], strict=False) if a != b)
+    return sum(1 for a, b in pairwise(signs) if a != b)
 
 
 def _fraction_free_rows(ints: Sequence[int], stop_at_non_positive: bool = False) -> list[list] | None:
@@ -336,68 +354,71 @@ def is_hurwitz(coefficients: Sequence[Fraction | int]) -> bool:
     return _fraction_free_rows(ints, stop_at_non_positive=True) is not None
 
 
-# The special-case rows are computed in the field Q(ε) of rational functions (sympy's
-# sparse FracField, always in lowest terms): general sympy expressions with a positive
-# symbol made a degree-15 table take seconds.
-_FIELD, _EPS = sp.field([EPSILON], sp.QQ)
+# The special-case rows are exact: GMP rationals until the first ε, then rational functions
+# of ε (robust.exact.epsilon). Their size grows with every ε row (a sparse polynomial of
+# degree 200 would reach degree ~190 in ε); past these bounds the rest of the table is left
+# out and the counts come from robust.exact.rootcount, which needs no table.
+_MAX_EPSILON_DEGREE = 24  # largest degree in ε of an entry that is still shown
+_EPSILON_WORK = 60_000  # work units (10 + size^2 per ε entry) for one table
 
 
-def _sign_at_zero_plus(entry) -> int:
-    """Sign of a non-zero element of Q(ε) as ε -> 0+: that of its lowest-order terms."""
-    def low(poly) -> int:
-        return 1 if min(poly.terms())[1] > 0 else -1
-    return low(entry.numer) * low(entry.denom)
+def _entry_out(entry) -> Entry:
+    """A Fraction for a constant entry, else the rational function of ε itself."""
+    return entry if isinstance(entry, EpsilonFraction) else from_mpq(entry)
 
 
-def _is_zero(entry) -> bool:
-    return entry == 0
+def _general_rows(coeffs: Sequence[Fraction]) -> tuple[list[list], list[SpecialRow], int, int]:
+    """Exact rows with both special rules.
 
-
-def _from_field(entry) -> Entry:
-    """A Fraction when the entry is constant, else a sympy expression in ε."""
-    value = entry.as_expr()
-    if value.is_Rational:
-        return Fraction(int(value.p), int(value.q))
-    return value
-
-
-def _general_rows(coeffs: Sequence[Fraction]) -> tuple[list[list[Entry]], list[SpecialRow], int]:
-    """Exact rows with both special rules; returns rows, special rows, first zero-row index."""
+    Returns the rows computed, the special rows, the index of the first auxiliary row (-1
+    when none) and the number of rows left out at the bottom (see ``_EPSILON_WORK``).
+    """
     n = len(coeffs) - 1
     width = n // 2 + 1
-    zero = _FIELD(0)
-    entries = [_FIELD(sp.Rational(c.numerator, c.denominator)) for c in coeffs]
+    zero = mpq(0)
+    entries = [to_mpq(c) for c in coeffs]
     rows: list[list] = [
         entries[0::2] + [zero] * (width - len(entries[0::2])),
         entries[1::2] + [zero] * (width - len(entries[1::2])),
     ][: n + 1]
     special: list[SpecialRow] = []
     first_aux: int | None = None
+    spent = 0
     for m in range(1, n + 1):
         power = n - m
         if m >= 2:
             a, b = rows[m - 2], rows[m - 1]
-            b0 = b[0]
-            rows.append(
-                [(b0 * a[j + 1] - a[0] * b[j + 1]) / b0 for j in range(width - 1)] + [zero]
-            )
+            new = []
+            for j in range(width - 1):
+                entry = routh_step(a[0], a[j + 1], b[0], b[j + 1])
+                if isinstance(entry, EpsilonFraction):
+                    # computing an entry costs about size^2 (its gcd), printing it a constant
+                    spent += 10 + size(entry) ** 2
+                    if entry.degree > _MAX_EPSILON_DEGREE or spent > _EPSILON_WORK:
+                        return rows, special, _or_none(first_aux), n + 1 - m
+                new.append(entry)
+            rows.append([*new, zero])
         row = rows[m]
-        if all(_is_zero(e) for e in row):
+        if all(is_zero(e) for e in row):
             above = rows[m - 1]
             k = power + 1  # degree of the auxiliary polynomial
             aux = [above[j] for j in range(k // 2 + 1)]
             aux_coeffs: list[Entry] = []
             for c in aux:
-                aux_coeffs += [_from_field(c), Fraction(0)]
+                aux_coeffs += [_entry_out(c), Fraction(0)]
             special.append(SpecialRow(power, "zero_row", tuple(aux_coeffs[: k + 1])))
-            rows[m] = [(k - 2 * j) * aux[j] for j in range(len(aux))]
+            rows[m] = [times(k - 2 * j, aux[j]) for j in range(len(aux))]
             rows[m] += [zero] * (width - len(rows[m]))
             if first_aux is None:
                 first_aux = m - 1
-        if _is_zero(rows[m][0]):
+        if is_zero(rows[m][0]):
             special.append(SpecialRow(power, "zero_leading"))
-            rows[m][0] = _EPS
-    return rows, special, (first_aux if first_aux is not None else -1)
+            rows[m][0] = EPSILON_ENTRY
+    return rows, special, _or_none(first_aux), 0
+
+
+def _or_none(index: int | None) -> int:
+    return -1 if index is None else index
 
 
 def routh_table(coefficients: object, shift: object = 0) -> RouthTable:
@@ -451,59 +472,30 @@ def routh_table(coefficients: object, shift: object = 0) -> RouthTable:
             _scales=Fraction(ints[0]) / coeffs[0],
             _exact_rows=None,
         )
-    rows, special, signs, roots = _tabulate(coeffs)
-    by_factors = None
-    if any(s.kind == "zero_leading" for s in special):
-        by_factors = _counts_by_factors(coeffs)
+    rows, special, first_aux, omitted = _general_rows(coeffs)
+    signs = tuple(sign_at_zero_plus(row[0]) for row in rows)
+    changes = _count_changes(signs)
+    by_factors = False
+    if omitted or any(s.kind == "zero_leading" for s in special):
+        # the ε rule alone is unsound when a root pair r, -r exists (Gantmacher, 1959,
+        # ch. XV), and a cut table has no bottom rows: count without the table
+        right, axis, left, paired = count_roots(coeffs)
+        roots = RootCounts(right, axis, left)
+        by_factors = paired > 0 and any(s.kind == "zero_leading" for s in special)
+    else:
+        imaginary = 0
+        if first_aux >= 0:
+            imaginary = (n - first_aux) - 2 * _count_changes(signs[first_aux:])
+        roots = RootCounts(changes, imaginary, n - changes - imaginary)
     return RouthTable(
         coefficients=coeffs,
         shift=sigma,
         special_rows=tuple(special),
         first_column_signs=signs,
-        roots=by_factors or roots,
+        roots=roots,
         _integer_rows=None,
         _scales=None,
         _exact_rows=tuple(tuple(row) for row in rows),
-        counted_by_factors=by_factors is not None,
+        counted_by_factors=by_factors,
+        omitted_rows=omitted,
     )
-
-
-def _tabulate(coeffs: Sequence[Fraction]):
-    """The general (special-case) table: rows, special rows, first-column signs, counts."""
-    n = len(coeffs) - 1
-    rows, special, first_aux = _general_rows(coeffs)
-    signs = tuple(_sign_at_zero_plus(row[0]) for row in rows)
-    changes = _count_changes(signs)
-    imaginary = 0
-    if first_aux >= 0:
-        aux_degree = n - first_aux
-        imaginary = aux_degree - 2 * _count_changes(signs[first_aux:])
-    rows = [[_from_field(e) for e in row] for row in rows]
-    return rows, special, signs, RootCounts(changes, imaginary, n - changes - imaginary)
-
-
-def _counts_by_factors(coeffs: Sequence[Fraction]) -> RootCounts | None:
-    """Counts via p = q * g, g = gcd(p(s), p(-s)), when the ε rule alone is not sound.
-
-    The ε rule is a perturbation argument: it keeps the counts only when no root pair
-    r, -r (imaginary-axis roots in particular) exists (Gantmacher, 1959, ch. XV). When an ε
-    row meets such a pair (before its zero row, or inside a repeated auxiliary polynomial),
-    the pairs are split off: q has none, so its table needs at most the ε rule; each
-    square-free factor of g is even or odd, so its table starts with a zero row and then
-    is that of g_i + g_i', which has no such pair either. None when g is constant.
-    """
-    p = sp.Poly([sp.Rational(c.numerator, c.denominator) for c in coeffs], _S, domain=sp.QQ)
-    g = sp.gcd(p, p.compose(sp.Poly(-_S, _S, domain=sp.QQ)))
-    if g.degree() <= 0:
-        return None
-    parts = [(sp.quo(p, g), 1), *g.sqf_list()[1]]
-    right = axis = left = 0
-    for factor, multiplicity in parts:
-        if factor.degree() <= 0:
-            continue
-        part = [Fraction(int(c.p), int(c.q)) for c in factor.all_coeffs()]
-        counts = _tabulate(part)[3]
-        right += multiplicity * counts.open_right
-        axis += multiplicity * counts.imaginary_axis
-        left += multiplicity * counts.open_left
-    return RootCounts(right, axis, left)

@@ -7,8 +7,11 @@ what is wrong and what was expected. Numbers are exact rationals from their deci
 
 from __future__ import annotations
 
+import dataclasses
 import hashlib
+import os
 import re
+import stat
 import tomllib
 from dataclasses import dataclass
 from fractions import Fraction
@@ -17,15 +20,18 @@ from pathlib import Path
 import sympy as sp
 
 from ..errors import CaseError, FormulaError, InputError
-from ..exact.numbers import parse_number, to_fraction
-from .expr import MAX_DEGREE, parse_formula
+from ..exact import sparse
+from ..exact.numbers import approx_text, parse_number, to_fraction
+from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, new_work, parse_formula
 from .family import Box, UncertainPolynomial, build_family
+from .forms import coefficients_polynomial, expression_polynomial, loop_polynomial
 
 __all__ = ["Case", "Parameter", "Requirements", "load_case", "parse_case"]
 
 _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
 _MAX_PARAMETERS = 64
-_MAX_FILE = 1_000_000
+#: Largest case file read, in bytes (checked before reading).
+MAX_FILE = 1_000_000
 DISTRIBUTIONS = ("uniform", "normal")
 
 
@@ -136,7 +142,8 @@ def _number(reader: _Reader, section: str, key: str, value: object) -> Fraction:
         raise reader.error(section, key, error.problem, error.expected or "a number", value) from None
 
 
-def _tolerance(reader: _Reader, section: str, value: object, nominal: Fraction) -> tuple[Fraction, Fraction, str]:
+def _tolerance(reader: _Reader, section: str, value: object,
+               nominal: Fraction) -> tuple[Fraction, Fraction, str]:
     """Absolute deviation (down, up) and the text as written."""
     expected = '"5%", "+-5%" or an absolute number such as 0.1 or "2m"'
     if isinstance(value, bool) or not isinstance(value, (str, int, float)):
@@ -201,7 +208,7 @@ def _parameter(reader: _Reader, name: str, table: object) -> Parameter:
                    if "nominal" in table else (low + high) / 2)
         if not low <= nominal <= high:
             raise reader.error(section, "nominal", "the nominal lies outside the range",
-                               f"a value in [{float(low):g}, {float(high):g}]", table["nominal"])
+                               f"a value in [{approx_text(low)}, {approx_text(high)}]", table["nominal"])
         tol_text = "range"
     else:
         if "nominal" not in table:
@@ -259,12 +266,12 @@ def _limits(reader: _Reader, section: str, value: object, low: Fraction, high: F
 
 
 def _formula(reader: _Reader, section: str, key: str, text: object, names, variable,
-             polynomial: bool, index: int | None = None):
+             polynomial: bool, work: sparse.Work, index: int | None = None):
     field = key if index is None else f"{key}[{index}]"
     if not isinstance(text, str | int | float) or isinstance(text, bool):
         raise reader.error(section, key, "a formula must be text", '"..."', text)
     try:
-        return parse_formula(str(text), names, variable, polynomial)
+        return parse_formula(str(text), names, variable, polynomial, work)
     except FormulaError as error:
         line = reader.line_of(section, key)
         raise CaseError(reader.path, f"{section}.{field}",
@@ -295,6 +302,9 @@ def parse_case(text: str, path: str = "<case>") -> Case:
     title = data.get("title", "")
     if not isinstance(title, str) or not title.strip():
         raise reader.error("", "title", "missing or empty title", 'title = "one line"')
+    if len(title.strip().splitlines()) > 1:
+        raise reader.error("", "title", "the title spans several lines",
+                           'title = "one line" (longer text belongs in summary)')
     summary = data.get("summary", "")
     if not isinstance(summary, str):
         raise reader.error("", "summary", "must be text", "a string")
@@ -330,56 +340,61 @@ def parse_case(text: str, path: str = "<case>") -> Case:
                            else "no polynomial given",
                            "expression = \"...\", coefficients = [...] or [polynomial.loop]")
     form = forms[0]
-    s = sp.Symbol(variable)
+    _check_total_length(reader, form, poly[form])
     formulas: list[tuple[str, str]] = []
-    if form == "expression":
-        expr = _formula(reader, "polynomial", "expression", poly["expression"], names, variable,
-                        True).expression
-        formulas.append(("expression", str(poly["expression"])))
-    elif form == "coefficients":
-        items = poly["coefficients"]
-        if not isinstance(items, list) or not items:
-            raise reader.error("polynomial", "coefficients", "must be a non-empty list",
-                               '["a_n", ..., "a_0"], highest power first', items)
-        if len(items) > MAX_DEGREE + 1:
-            raise reader.error("polynomial", "coefficients", "degree too high",
-                               f"at most {MAX_DEGREE + 1} coefficients")
-        expr = sp.Integer(0)
-        n = len(items) - 1
-        for i, item in enumerate(items):
-            c = _formula(reader, "polynomial", "coefficients", item, names, None, False, i).expression
-            expr += c * s ** (n - i)
-            formulas.append((f"coefficients[{i}] (s^{n - i})", str(item)))
-    else:
-        loop = poly["loop"]
-        if not isinstance(loop, dict) or set(loop) - {"plant", "controller"} or "plant" not in loop:
-            raise reader.error("polynomial.loop", None, "a loop needs plant (and optionally controller)",
-                               'plant = "...", controller = "..."')
-        plant = _formula(reader, "polynomial.loop", "plant", loop["plant"], names, variable, False)
-        controller = _formula(reader, "polynomial.loop", "controller", loop.get("controller", "1"),
-                              names, variable, False)
-        formulas.append(("plant", str(loop["plant"])))
-        formulas.append(("controller", str(loop.get("controller", "1"))))
-        # numerators and denominators as written: a pole-zero cancellation inside a formula
-        # must not hide a mode of the loop
-        n_p, d_p = plant.numerator, plant.denominator
-        n_c, d_c = controller.numerator, controller.denominator
-        expr = sp.expand(d_p * d_c + n_p * n_c)
-        if expr == 0:
-            raise reader.error("polynomial.loop", "plant",
-                               "the characteristic polynomial 1 + P*C is identically zero",
-                               "a loop whose closed-loop denominator is not zero")
-    numerator, denominator = sp.fraction(sp.together(expr))
-    if denominator.has(s):
-        raise reader.error("polynomial", form, f"the characteristic polynomial is not polynomial in {variable}",
+    work = new_work()  # one account for every formula of the case and for combining them
+    try:
+        if form == "expression":
+            numerator, denominator = expression_polynomial(
+                _formula(reader, "polynomial", "expression", poly["expression"], names, variable, True,
+                         work))
+            formulas.append(("expression", str(poly["expression"])))
+        elif form == "coefficients":
+            items = poly["coefficients"]
+            if not isinstance(items, list) or not items:
+                raise reader.error("polynomial", "coefficients", "must be a non-empty list",
+                                   '["a_n", ..., "a_0"], highest power first', items)
+            if len(items) > MAX_DEGREE + 1:
+                raise reader.error("polynomial", "coefficients", "degree too high",
+                                   f"at most {MAX_DEGREE + 1} coefficients")
+            n = len(items) - 1
+            parsed = [_formula(reader, "polynomial", "coefficients", item, names, None, False, work, i)
+                      for i, item in enumerate(items)]
+            formulas += [(f"coefficients[{i}] (s^{n - i})", str(item)) for i, item in enumerate(items)]
+            numerator, denominator = coefficients_polynomial(parsed, work)
+        else:
+            loop = poly["loop"]
+            if not isinstance(loop, dict) or set(loop) - {"plant", "controller"} or "plant" not in loop:
+                raise reader.error("polynomial.loop", None, "a loop needs plant (and optionally controller)",
+                                   'plant = "...", controller = "..."')
+            plant = _formula(reader, "polynomial.loop", "plant", loop["plant"], names, variable, False,
+                             work)
+            controller = _formula(reader, "polynomial.loop", "controller", loop.get("controller", "1"),
+                                  names, variable, False, work)
+            formulas.append(("plant", str(loop["plant"])))
+            formulas.append(("controller", str(loop.get("controller", "1"))))
+            numerator, denominator = loop_polynomial(plant, controller, work)
+            if sparse.is_zero(numerator):
+                raise reader.error("polynomial.loop", "plant",
+                                   "the characteristic polynomial 1 + P*C is identically zero",
+                                   "a loop whose closed-loop denominator is not zero")
+    except CaseError:
+        raise
+    except InputError as error:  # the work account of combining the formulas ran out
+        raise reader.error("polynomial", form, error.problem, error.expected) from None
+    if sparse.degree_in(denominator, 0) > 0:
+        raise reader.error("polynomial", form,
+                           f"the characteristic polynomial is not polynomial in {variable}",
                            f"a polynomial in {variable}")
-    degree = sp.degree(numerator, s) if numerator != 0 else 0
+    degree = sparse.degree_in(numerator, 0)
     if degree > MAX_DEGREE:
         raise reader.error("polynomial", form, "degree too high", f"degree <= {MAX_DEGREE}", degree)
     box = Box(names, tuple(p.low for p in parameters), tuple(p.high for p in parameters))
     nominal = tuple(p.nominal for p in parameters)
+    slots = 1 + len(names)
     try:
-        family = build_family(numerator, denominator, s, names, box, nominal,
+        family = build_family(sparse.to_multipoly(numerator, slots), sparse.to_multipoly(denominator, slots),
+                              sp.Symbol(variable), names, box, nominal,
                               limits=tuple(p.limits for p in parameters))
     except InputError as error:
         raise reader.error("polynomial", form, error.problem, error.expected) from None
@@ -387,6 +402,15 @@ def parse_case(text: str, path: str = "<case>") -> Case:
     return Case(path, title.strip(), summary.strip(), variable, parameters, form,
                 tuple(formulas), family, requirements,
                 hashlib.sha256(text.encode()).hexdigest())
+
+
+def _check_total_length(reader: _Reader, form: str, value: object) -> None:
+    """Refuse, before parsing any, formulas that are too long together to read quickly."""
+    items = value if isinstance(value, list) else list(value.values()) if isinstance(value, dict) else [value]
+    total = sum(len(item) for item in items if isinstance(item, str))
+    if total > MAX_TOTAL_LENGTH:
+        raise reader.error("polynomial", form, f"the formulas are too long together ({total:,} characters)",
+                           f"at most {MAX_TOTAL_LENGTH:,} characters in all the formulas of a case")
 
 
 def _requirements(reader: _Reader, table: object) -> Requirements:
@@ -413,19 +437,29 @@ def load_case(path: str | Path) -> Case:
         One line naming the file, line, field, the problem and what was expected.
     """
     name = str(path)
-    p = Path(path)
     try:
-        raw = p.read_bytes()
+        info = os.stat(path)
     except FileNotFoundError:
         raise CaseError(name, "", "no such file", "the path of a .toml case file") from None
-    except IsADirectoryError:
-        raise CaseError(name, "", "is a directory", "the path of a .toml case file") from None
     except OSError as error:
         raise CaseError(name, "", f"cannot read the file ({error.strerror})") from None
-    if len(raw) > _MAX_FILE:
-        raise CaseError(name, "", "file too large for a case", f"at most {_MAX_FILE} bytes")
+    if stat.S_ISDIR(info.st_mode):
+        raise CaseError(name, "", "is a directory", "the path of a .toml case file")
+    if not stat.S_ISREG(info.st_mode):  # a device such as /dev/zero, a pipe, a socket
+        raise CaseError(name, "", "not a regular file", "the path of a .toml case file")
+    if info.st_size > MAX_FILE:
+        raise CaseError(name, "", f"file too large for a case ({info.st_size:,} bytes)",
+                        f"at most {MAX_FILE:,} bytes")
     try:
-        text = raw.decode("utf-8")
+        with open(path, "rb") as handle:
+            raw = handle.read(MAX_FILE + 1)  # the size may have changed since stat
+    except OSError as error:
+        raise CaseError(name, "", f"cannot read the file ({error.strerror})") from None
+    if len(raw) > MAX_FILE:
+        raise CaseError(name, "", "file too large for a case", f"at most {MAX_FILE:,} bytes")
+    try:
+        text = raw.decode("utf-8-sig")  # a byte-order mark some editors write is dropped
     except UnicodeDecodeError:
         raise CaseError(name, "", "not UTF-8 text", "a TOML text file") from None
-    return parse_case(text, name)
+    # the record names the file's own bytes, byte-order mark included
+    return dataclasses.replace(parse_case(text, name), sha256=hashlib.sha256(raw).hexdigest())

@@ -1,8 +1,8 @@
 """A small, safe formula parser.
 
-Formulas are read by our own tokenizer and recursive-descent parser and turned into sympy
-expressions node by node. Nothing a user writes is ever handed to ``eval``, ``exec``,
-``sympify`` or ``parse_expr``. The language is deliberately tiny:
+Formulas are read by our own tokenizer and recursive-descent parser and expanded node by node
+into exact sparse polynomials (:mod:`robust.exact.sparse`). Nothing a user writes is ever
+handed to ``eval``, ``exec``, ``sympify`` or ``parse_expr``. The language is deliberately tiny:
 
 * numbers (``12``, ``0.1``, ``4.7e-3``; taken exactly as decimals),
 * declared names (parameters) and the polynomial variable,
@@ -10,45 +10,57 @@ expressions node by node. Nothing a user writes is ever handed to ``eval``, ``ex
 * integer constant exponents only, written as a literal (``s^3``, ``R^-1``).
 
 Limits keep hostile or mistyped input cheap to reject: formula length, nesting depth,
-exponent size, and a bound on the size of the expanded result.
+exponent size, an estimate of the expanded size checked before each product, and the work of
+expanding (term products, paid from one account per case).
 """
 
 from __future__ import annotations
 
+import operator
 import re
-from collections.abc import Iterable
-from dataclasses import dataclass
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass, field
 from fractions import Fraction
-
-import sympy as sp
+from types import MappingProxyType
+from typing import NamedTuple
 
 from ..errors import FormulaError, InputError
-from ..exact.numbers import parse_number
+from ..exact import sparse
+from ..exact.numbers import parse_number, to_mpq
 
 __all__ = [
     "MAX_DEGREE",
     "MAX_EXPONENT",
+    "MAX_TERMS",
+    "MAX_TOTAL_LENGTH",
+    "MAX_WORK",
     "ParsedFormula",
+    "new_work",
     "parse_formula",
     "polynomial_coefficients",
 ]
 
 MAX_LENGTH = 20_000
+#: All the formulas of one case together (parsing runs at about 10 us per character).
+MAX_TOTAL_LENGTH = 100_000
 MAX_DEPTH = 60
 MAX_EXPONENT = 200
 MAX_DEGREE = 200
-_MAX_TERMS = 200_000
+#: Term products all the formulas of one case may spend while they are expanded (about a
+#: second of work), and the most terms one expanded polynomial may have.
+MAX_WORK = 1_000_000
+MAX_TERMS = 50_000
 _MAX_NUMBER_BITS = 20_000  # a power of a constant may not exceed this many bits
 
-_TOKEN = re.compile(
-    r"\s*(?:(?P<number>(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)"
+_TOKEN = re.compile(  # ASCII only: other digits (an Arabic-Indic three) are not numbers
+    r"\s*(?:(?P<number>(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?)"
     r"|(?P<name>[A-Za-z_][A-Za-z0-9_]*)"
     r"|(?P<op>\*\*|[-+*/^()]))"
 )
+_SPACE = re.compile(r"\s*")
 
 
-@dataclass(frozen=True, slots=True)
-class _Token:
+class _Token(NamedTuple):  # a tuple: tokens are made by the hundred thousand
     kind: str  # "number", "name", "op", "end"
     text: str
     position: int  # 1-based column
@@ -58,46 +70,74 @@ class _Token:
 class _Size:
     """Upper bounds on the expanded size of a subexpression (to refuse blow-ups early)."""
 
-    degrees: tuple[tuple[str, int], ...]  # per-symbol degree bound, sorted by name
+    degrees: tuple[int, ...]  # per slot (the variable, then the names): a degree bound
     terms: int
-
-    def degree(self, name: str) -> int:
-        return dict(self.degrees).get(name, 0)
 
 
 @dataclass(frozen=True, slots=True)
 class ParsedFormula:
-    """A formula read into sympy.
+    """A formula read and expanded exactly.
 
     Attributes
     ----------
     text
         The text as written.
-    expression
-        The sympy expression built from the syntax tree.
     names
         The declared names the formula uses (the variable excluded), sorted.
-    numerator, denominator
-        The formula as one quotient exactly as written: common factors of the two are not
-        cancelled (the expression above may have them cancelled by sympy).
+    slots
+        The order of the variables of the expanded forms: the polynomial variable first
+        (``""`` when there is none), then every declared name in the order given.
+    expanded_numerator, expanded_denominator
+        The formula as one quotient exactly as written, expanded: common factors of the two
+        are not cancelled, so a pole-zero cancellation inside a formula cannot hide a mode.
+        Read-only sparse polynomials over ``slots`` (see :mod:`robust.exact.sparse`).
     """
 
     text: str
-    expression: sp.Expr
     names: tuple[str, ...]
-    numerator: sp.Expr = sp.Integer(0)
-    denominator: sp.Expr = sp.Integer(1)
+    slots: tuple[str, ...]
+    expanded_numerator: Mapping = field(repr=False, compare=False)
+    expanded_denominator: Mapping = field(repr=False, compare=False)
+
+    @property
+    def numerator(self):
+        """The numerator as a sympy expression (for inspection and tests)."""
+        return _to_sympy(self.expanded_numerator, self.slots)
+
+    @property
+    def denominator(self):
+        """The denominator as a sympy expression."""
+        return _to_sympy(self.expanded_denominator, self.slots)
+
+    @property
+    def expression(self):
+        """The formula as one sympy expression (numerator / denominator)."""
+        den = self.denominator
+        return self.numerator if den == 1 else self.numerator / den
+
+
+def _to_sympy(poly: Mapping, slots: Sequence[str]):
+    import sympy as sp  # only to show a formula; reading one never needs sympy
+
+    symbols = [sp.Symbol(n) if n else sp.Integer(1) for n in slots]
+    terms = []
+    for m, c in poly.items():
+        term = sp.Rational(int(c.numerator), int(c.denominator))
+        for i, symbol in enumerate(symbols):
+            k = (m >> (sparse.BITS * i)) & ((1 << sparse.BITS) - 1)
+            if k:
+                term *= symbol**k
+        terms.append(term)
+    return sp.Add(*terms)
 
 
 def _tokenize(text: str) -> list[_Token]:
     tokens: list[_Token] = []
-    pos = 0
+    pos = _SPACE.match(text).end()
     while pos < len(text):
-        if text[pos:].strip() == "":
-            break
         match = _TOKEN.match(text, pos)
         if not match or match.end() == pos:
-            column = pos + 1 + (len(text[pos:]) - len(text[pos:].lstrip()))
+            column = pos + 1
             char = text[column - 1]
             if char == ".":
                 raise FormulaError(text, column, "attribute access is not allowed", "+ - * / ^")
@@ -113,46 +153,59 @@ def _tokenize(text: str) -> list[_Token]:
         kind = match.lastgroup or "op"
         start = match.start(kind) + 1
         tokens.append(_Token(kind, match.group(kind), start))
-        pos = match.end()
+        pos = _SPACE.match(text, match.end()).end()
     tokens.append(_Token("end", "", len(text) + 1))
     return tokens
 
 
 class _Frac:
-    """A quotient kept as written: numerator and denominator are never cancelled against
-    each other, so a pole-zero cancellation inside a formula cannot hide a mode."""
+    """A quotient kept as written, expanded exactly as sparse polynomials in the variable
+    (slot 0) and the names, every product paid for from the parser's work account."""
 
     __slots__ = ("den", "num")
 
-    def __init__(self, num: sp.Expr, den: sp.Expr = sp.Integer(1)):
+    def __init__(self, num: dict, den: dict):
         self.num, self.den = num, den
 
-    def has(self, symbol: sp.Symbol) -> bool:
-        return self.num.has(symbol) or self.den.has(symbol)
+    def has_variable(self) -> bool:
+        return sparse.degree_in(self.num, 0) > 0 or sparse.degree_in(self.den, 0) > 0
 
-    def add(self, other: _Frac) -> _Frac:
+    def constant(self) -> Fraction | None:
+        """The value when both parts are constants, else None."""
+        if set(self.num) <= {0} and set(self.den) == {0}:
+            return Fraction(self.num.get(0, 0)) / Fraction(self.den[0])
+        return None
+
+    def add(self, other: _Frac, work: sparse.Work) -> _Frac:
         if self.den == other.den:
-            return _Frac(self.num + other.num, self.den)
-        return _Frac(self.num * other.den + other.num * self.den, self.den * other.den)
+            return _Frac(sparse.add(self.num, other.num), self.den)
+        if sparse.is_monomial(self.den) and sparse.is_monomial(other.den):
+            # R/L + 1/(L*C): over the least common multiple L*C, as one would write it
+            common = sparse.monomial_lcm(self.den, other.den)
+            mine, theirs = (sparse.monomial_quotient(common, d) for d in (self.den, other.den))
+        else:
+            common = sparse.multiply(self.den, other.den, work)
+            mine, theirs = other.den, self.den
+        num = sparse.add(sparse.multiply(self.num, mine, work), sparse.multiply(other.num, theirs, work))
+        return _Frac(num, common)
 
-    def mul(self, other: _Frac) -> _Frac:
-        return _Frac(self.num * other.num, self.den * other.den)
+    def mul(self, other: _Frac, work: sparse.Work) -> _Frac:
+        return _Frac(sparse.multiply(self.num, other.num, work), sparse.multiply(self.den, other.den, work))
 
     def negate(self) -> _Frac:
-        return _Frac(-self.num, self.den)
+        return _Frac(sparse.negate(self.num), self.den)
 
     def invert(self) -> _Frac:
         return _Frac(self.den, self.num)
 
-    def power(self, k: int) -> _Frac:
-        return _Frac(self.num**k, self.den**k) if k >= 0 else _Frac(self.den**-k, self.num**-k)
-
-    def expression(self) -> sp.Expr:
-        return self.num if self.den == 1 else self.num / self.den
+    def power(self, k: int, work: sparse.Work) -> _Frac:
+        base = self if k >= 0 else self.invert()
+        return _Frac(sparse.power(base.num, abs(k), work), sparse.power(base.den, abs(k), work))
 
 
 class _Parser:
-    def __init__(self, text: str, names: frozenset[str], variable: str | None, polynomial: bool):
+    def __init__(self, text: str, names: tuple[str, ...], variable: str | None, polynomial: bool,
+                 work: sparse.Work):
         self.text = text
         self.names = names
         self.variable = variable
@@ -161,9 +214,14 @@ class _Parser:
         self.index = 0
         self.depth = 0
         self.used: set[str] = set()
-        self.symbols = {n: sp.Symbol(n) for n in names}
+        # sparse polynomial slots: the variable is 0, the names follow in the order given
+        self.slots = {n: i + 1 for i, n in enumerate(names)}
         if variable is not None:
-            self.symbols[variable] = sp.Symbol(variable)
+            self.slots[variable] = 0
+        self.work = work
+        count = 1 + len(names)
+        self.no_degree = (0,) * count
+        self.unit_degrees = [tuple(int(i == j) for j in range(count)) for i in range(count)]
 
     # -- token helpers ---------------------------------------------------------------------
     @property
@@ -205,12 +263,21 @@ class _Parser:
 
     def sum(self) -> tuple[_Frac, _Size]:
         value, size = self.product()
+        owned = False  # whether value.num is this loop's own dict, to add into in place
         while self.is_op("+", "-"):
             op = self.take()
             other, other_size = self.product()
-            value = value.add(other if op.text == "+" else other.negate())
             size = _add_sizes(size, other_size)
             self.check_size(size, op)
+            if value.den == other.den:  # terms over one denominator: add in place, no copy
+                if not owned:
+                    value, owned = _Frac(dict(value.num), value.den), True
+                sparse.add_into(value.num, other.num, -1 if op.text == "-" else 1)
+                size = _Size(size.degrees, min(size.terms, max(len(value.num), len(value.den), 1)))
+            else:
+                value, size = self.expand(op, size, value.add,
+                                          other if op.text == "+" else other.negate())
+                owned = True
         return value, size
 
     def product(self) -> tuple[_Frac, _Size]:
@@ -218,19 +285,35 @@ class _Parser:
         while self.is_op("*", "/"):
             op = self.take()
             other, other_size = self.unary()
-            if op.text == "*":
-                value, size = value.mul(other), _mul_sizes(size, other_size)
-            else:
-                if other.num == 0:
-                    raise self.fail("division by zero", "a non-zero divisor", op)
-                if self.polynomial and self.variable and other.has(self.symbols[self.variable]):
-                    raise self.fail(
-                        f"division by an expression in {self.variable}",
-                        f"a polynomial in {self.variable}", op,
-                    )
-                value, size = value.mul(other.invert()), _mul_sizes(size, other_size)
+            if op.text == "/":
+                self.check_divisor(other, other_size, op, "division by")
+                other = other.invert()
+            size = _mul_sizes(size, other_size)
             self.check_size(size, op)
+            value, size = self.expand(op, size, value.mul, other)
         return value, size
+
+    def check_divisor(self, divisor: _Frac, size: _Size, op: _Token, what: str) -> None:
+        """Refuse dividing by zero, written or once expanded, and (for a polynomial) by an
+        expression in the variable."""
+        if sparse.is_zero(divisor.num):
+            if max(size.degrees) == 0:  # written without a name: 0, 2 - 2, ...
+                raise self.fail("division by zero", "a non-zero divisor", op)
+            # e.g. (s+1)^2 - s^2 - 2*s - 1: zero, though not written as 0
+            raise self.fail(f"{what} an expression that is identically zero once expanded",
+                            "a divisor that is not zero", op)
+        if self.polynomial and self.variable and divisor.has_variable():
+            raise self.fail(f"{what} an expression in {self.variable}",
+                            f"a polynomial in {self.variable}", op)
+
+    def expand(self, op: _Token, size: _Size, method, argument) -> tuple[_Frac, _Size]:
+        """``method(argument)`` paid from the work account; the size becomes the actual one."""
+        try:
+            value = method(argument, self.work)
+        except InputError as error:  # the work account ran out
+            raise self.fail(error.problem, error.expected, op) from None
+        terms = max(len(value.num), len(value.den), 1)
+        return value, _Size(size.degrees, min(size.terms, terms))
 
     def unary(self) -> tuple[_Frac, _Size]:
         if self.is_op("+", "-"):
@@ -248,24 +331,16 @@ class _Parser:
             exponent = self.exponent()
             if self.is_op("^", "**"):
                 raise self.fail("exponent towers are not accepted", "one integer exponent")
-            if exponent < 0 and base.num == 0:
-                raise self.fail("division by zero", "a non-zero base", op)
-            if (
-                exponent < 0 and self.polynomial and self.variable
-                and base.has(self.symbols[self.variable])
-            ):
-                raise self.fail(
-                    f"negative power of an expression in {self.variable}",
-                    f"a polynomial in {self.variable}", op,
-                )
-            if base.num.is_Rational and base.den.is_Rational and abs(exponent) * max(
-                int(base.num.p).bit_length(), int(base.num.q).bit_length(),
-                int(base.den.p).bit_length(), int(base.den.q).bit_length(),
+            if exponent < 0:
+                self.check_divisor(base, size, op, "negative power of")
+            value = base.constant()
+            if value is not None and abs(exponent) * max(
+                int(value.numerator).bit_length(), int(value.denominator).bit_length()
             ) > _MAX_NUMBER_BITS:  # ((9^200)^200)^200 would take minutes and all memory
                 raise self.fail("number too large", f"constants below 2^{_MAX_NUMBER_BITS}", op)
             size = _pow_size(size, abs(exponent))
             self.check_size(size, op)
-            return base.power(exponent), size
+            return self.expand(op, size, base.power, exponent)
         return base, size
 
     def exponent(self) -> int:
@@ -277,11 +352,12 @@ class _Parser:
             parenthesised = True
         if self.is_op("+", "-"):
             sign = -1 if self.take().text == "-" else 1
-        if self.token.kind != "number" or not self.token.text.isdigit():
+        if self.token.kind != "number" or not re.fullmatch("[0-9]+", self.token.text):
             if self.token.kind == "name" or self.is_op("("):
                 raise self.fail("exponents must be integer constants", "an integer such as 2")
             raise self.fail("exponents must be integer constants", "an integer such as 2")
-        value = sign * int(self.take().text)
+        digits = self.take().text.lstrip("0") or "0"
+        value = sign * (int(digits) if len(digits) <= 6 else 10**6)  # 10**6: "too large" below
         if parenthesised:
             if not self.is_op(")"):
                 raise self.fail("exponents must be integer constants", "')'")
@@ -306,7 +382,10 @@ class _Parser:
                 value = parse_number(token.text, "number", suffixes=False)
             except InputError as error:  # e.g. 1e401: report it with its column, as the rest
                 raise self.fail(error.problem, error.expected, token) from None
-            return _Frac(sp.Rational(value.numerator, value.denominator)), _Size((), 1)
+            # a decimal is a constant of the numerator, as written (0.05*s: the coefficient 1/20);
+            # integers stay Python ints, the fastest exact numbers here
+            constant = int(value) if value.denominator == 1 else to_mpq(value)
+            return _Frac(sparse.constant(constant), _PONE), _Size(self.no_degree, 1)
         if token.kind == "name":
             self.take()
             if self.is_op("("):
@@ -314,7 +393,7 @@ class _Parser:
                     f"function calls are not allowed ({token.text}(...))",
                     "numbers, names, + - * / ^ and parentheses", token,
                 )
-            if token.text not in self.symbols:
+            if token.text not in self.slots:
                 known = sorted(self.names)
                 hint = ", ".join(known[:8]) + (" ..." if len(known) > 8 else "")
                 expected = "a declared parameter" + (f" ({hint})" if hint else "")
@@ -323,7 +402,8 @@ class _Parser:
                 raise self.fail(f"unknown name {token.text!r}", expected, token)
             if token.text != self.variable:
                 self.used.add(token.text)
-            return _Frac(self.symbols[token.text]), _Size(((token.text, 1),), 1)
+            slot = self.slots[token.text]
+            return _Frac(sparse.variable(slot), _PONE), _Size(self.unit_degrees[slot], 1)
         if self.is_op("("):
             self.take()
             self.enter()
@@ -342,41 +422,47 @@ class _Parser:
         raise self.fail(f"unexpected {token.text!r}", "a number, a name or '('")
 
     def check_size(self, size: _Size, token: _Token) -> None:
-        if self.variable and size.degree(self.variable) > MAX_DEGREE:
+        if self.variable and size.degrees[0] > MAX_DEGREE:
             raise self.fail(
                 f"degree in {self.variable} too high", f"degree <= {MAX_DEGREE}", token
             )
-        if any(d > MAX_DEGREE for _, d in size.degrees) or size.terms > _MAX_TERMS:
-            raise self.fail("formula expands to an absurd size", "a smaller expression", token)
+        if max(size.degrees) > MAX_DEGREE or size.terms > MAX_TERMS:
+            raise self.fail(f"formula expands to an absurd size (over {MAX_TERMS:,} terms or degree "
+                            f"{MAX_DEGREE} in a parameter)", "a smaller expression", token)
 
 
-def _merge(a: _Size, b: _Size, combine) -> tuple[tuple[str, int], ...]:
-    da, db = dict(a.degrees), dict(b.degrees)
-    return tuple(sorted((k, combine(da.get(k, 0), db.get(k, 0))) for k in set(da) | set(db)))
+_PONE = sparse.constant(1)
 
 
-def _dense_bound(degrees: Iterable[tuple[str, int]]) -> int:
+def new_work() -> sparse.Work:
+    """A work account with the limits for reading one case."""
+    return sparse.Work(MAX_WORK, MAX_TERMS)
+
+
+def _dense_bound(degrees: Iterable[int]) -> int:
     bound = 1
-    for _, d in degrees:
-        bound *= d + 1
-        if bound > 10 * _MAX_TERMS:
-            break
+    for d in degrees:
+        if d:
+            bound *= d + 1
+            if bound > 10 * MAX_TERMS:
+                break
     return bound
 
 
 def _add_sizes(a: _Size, b: _Size) -> _Size:
-    degrees = _merge(a, b, max)
+    degrees = tuple(map(max, a.degrees, b.degrees))
     return _Size(degrees, min(a.terms + b.terms, _dense_bound(degrees)))
 
 
 def _mul_sizes(a: _Size, b: _Size) -> _Size:
-    degrees = _merge(a, b, lambda x, y: x + y)
+    degrees = tuple(map(operator.add, a.degrees, b.degrees))
     return _Size(degrees, min(a.terms * b.terms, _dense_bound(degrees)))
 
 
 def _pow_size(a: _Size, k: int) -> _Size:
-    degrees = tuple((n, d * k) for n, d in a.degrees)
-    crude = a.terms**k if a.terms > 1 and k * a.terms.bit_length() < 64 else (1 if a.terms <= 1 else 10 * _MAX_TERMS)
+    degrees = tuple(d * k for d in a.degrees)
+    small = a.terms <= 1 or k * a.terms.bit_length() < 64
+    crude = (a.terms**k if a.terms > 1 else 1) if small else 10 * MAX_TERMS
     return _Size(degrees, min(crude, _dense_bound(degrees)))
 
 
@@ -385,8 +471,9 @@ def parse_formula(
     names: Iterable[str] = (),
     variable: str | None = "s",
     polynomial: bool = False,
+    work: sparse.Work | None = None,
 ) -> ParsedFormula:
-    """Parse a formula into a sympy expression without evaluating any user text.
+    """Parse and expand a formula exactly, without evaluating any user text.
 
     Parameters
     ----------
@@ -398,6 +485,9 @@ def parse_formula(
         The polynomial variable (``None`` when the formula must not contain one).
     polynomial
         Refuse division by, and negative powers of, expressions in the variable.
+    work
+        The account expanding is paid from (several formulas may share one); by default a
+        fresh one of :data:`MAX_WORK` term products.
 
     Raises
     ------
@@ -413,10 +503,11 @@ def parse_formula(
         raise FormulaError(str(text), 1, "a formula must be text", "a string")
     if len(text) > MAX_LENGTH:
         raise FormulaError(text, MAX_LENGTH, "formula too long", f"at most {MAX_LENGTH} characters")
-    declared = frozenset(names)
-    parser = _Parser(text, declared, variable, polynomial)
+    declared = tuple(dict.fromkeys(names))
+    parser = _Parser(text, declared, variable, polynomial, work or new_work())
     value, _ = parser.parse()
-    return ParsedFormula(text, value.expression(), tuple(sorted(parser.used)), value.num, value.den)
+    return ParsedFormula(text, tuple(sorted(parser.used)), (variable or "", *declared),
+                         MappingProxyType(value.num), MappingProxyType(value.den))
 
 
 def polynomial_coefficients(text: str, variable: str = "s") -> list[Fraction]:
@@ -433,5 +524,9 @@ def polynomial_coefficients(text: str, variable: str = "s") -> list[Fraction]:
     [Fraction(1, 1), Fraction(3, 2), Fraction(1, 2)]
     """
     parsed = parse_formula(text, (), variable, polynomial=True)
-    poly = sp.Poly(sp.expand(parsed.expression), sp.Symbol(variable))
-    return [Fraction(int(c.p), int(c.q)) for c in poly.all_coeffs()]
+    # no names and no division by the variable: the denominator is a non-zero constant, and
+    # a packed monomial in the variable alone is its exponent
+    scale = Fraction(parsed.expanded_denominator[0])
+    by_power = {m: Fraction(c) / scale for m, c in parsed.expanded_numerator.items()}
+    degree = max(by_power, default=0)
+    return [by_power.get(k, Fraction(0)) for k in range(degree, -1, -1)]

@@ -19,6 +19,7 @@ import sympy as sp
 
 from ..errors import InputError
 from ..exact.numbers import to_float
+from ..exact.content import common_factor, divide
 from ..exact.polynomials import Bound, MultiPoly, as_intervals
 
 __all__ = ["Box", "UncertainPolynomial", "build_family", "classify", "shifted_family", "sign_over_box"]
@@ -258,10 +259,12 @@ def classify(coefficients: Sequence[MultiPoly]) -> str:
 
 
 def _to_multipoly(expr: sp.Expr, symbols: Sequence[sp.Symbol]) -> MultiPoly:
-    poly = sp.Poly(expr, *symbols, domain="QQ") if symbols else None
-    if poly is None:
+    """A sympy polynomial expression in ``symbols`` as a MultiPoly (for sympy input only:
+    case files are expanded by :mod:`robust.exact.sparse`, never by sympy)."""
+    if not symbols:
         value = sp.Rational(expr)
         return MultiPoly.constant(0, Fraction(int(value.p), int(value.q)))
+    poly = sp.Poly(expr, *symbols, domain="QQ")
     mapping = {
         tuple(int(k) for k in monom): Fraction(int(c.p), int(c.q))
         for monom, c in zip(poly.monoms(), poly.coeffs(), strict=True)
@@ -293,9 +296,23 @@ def sign_over_box(poly: MultiPoly, box: Box, depth: int = 0) -> int | None:
     return signs.pop() if len(signs) == 1 else None
 
 
+def _factor_text(factor: MultiPoly, names: Sequence[str]) -> str:
+    """A cleared factor as sympy writes it (short ones; long ones in our own notation)."""
+    if len(factor.terms) > 200:
+        return factor.to_text(names)
+    symbols = [sp.Symbol(n) for n in names]
+    terms = []
+    for e, c in factor.terms:
+        term = sp.Rational(int(c.numerator), int(c.denominator))
+        for symbol, k in zip(symbols, e, strict=True):
+            term *= symbol**k
+        terms.append(term)
+    return sp.sstr(sp.Add(*terms))
+
+
 def build_family(
-    numerator: sp.Expr,
-    denominator: sp.Expr,
+    numerator: sp.Expr | MultiPoly,
+    denominator: sp.Expr | MultiPoly,
     variable: sp.Symbol,
     names: Sequence[str],
     box: Box,
@@ -303,58 +320,60 @@ def build_family(
     where: str = "polynomial",
     limits: Sequence[tuple[Fraction | None, Fraction | None]] = (),
 ) -> UncertainPolynomial:
-    """Make the family from a characteristic polynomial numerator/denominator (sympy).
+    """Make the family from a characteristic polynomial numerator/denominator.
 
-    ``denominator`` must be free of the variable. Common factors of all coefficients that
-    depend only on the parameters are divided out when they keep one sign over the box.
+    Both are sympy expressions in ``variable`` and the parameters, or MultiPolys over
+    (variable, *names) (what case files give). ``denominator`` must be free of the variable.
+    Common factors of all coefficients that depend only on the parameters are divided out
+    when they keep one sign over the box.
 
     Raises
     ------
     InputError
         When the polynomial is zero, a denominator or common factor may vanish inside the
-        box, or the leading coefficient is identically zero.
+        box, or the polynomial does not depend on the variable.
     """
-    symbols = [sp.Symbol(n) for n in names]
-    numerator = sp.expand(numerator)
-    if numerator == 0:
+    if not isinstance(numerator, MultiPoly) or not isinstance(denominator, MultiPoly):
+        gens = [variable, *(sp.Symbol(n) for n in names)]
+        numerator = _to_multipoly(sp.expand(numerator), gens)
+        denominator = _to_multipoly(sp.expand(denominator), gens)
+    if numerator.is_zero:
         raise InputError(where, "the characteristic polynomial is identically zero",
                          "a non-zero polynomial in " + str(variable))
-    poly_s = sp.Poly(numerator, variable)
-    coeffs = poly_s.all_coeffs()
-    content = sp.Integer(0)
-    for c in coeffs:
-        content = sp.gcd(content, c)
-    cleared = []
-    rational = False
-    if content.free_symbols:
-        coeffs = [sp.cancel(c / content) for c in coeffs]
+    if any(e[0] for e, _ in denominator.terms):
+        raise InputError(where, f"the denominator depends on {variable}", f"a polynomial in {variable}")
+    k = len(names)
+    by_power: dict[int, dict] = {}
+    for e, c in numerator.terms:
+        by_power.setdefault(e[0], {})[e[1:]] = c
+    degree = max(by_power)
+    coeffs = [MultiPoly.from_mapping(k, by_power.get(d, {})) for d in range(degree, -1, -1)]
+    cleared: list[MultiPoly] = []
+    content = common_factor(coeffs)
+    if content is not None:
+        coeffs = [divide(c, content) for c in coeffs]
         cleared.append(content)
-    denominator = sp.expand(denominator)
-    if denominator.free_symbols:
-        rational = True
-        cleared.append(denominator)
-    factor_polys = []
+    rational = denominator.total_degree() > 0
+    if rational:
+        cleared.append(MultiPoly.from_mapping(k, {e[1:]: c for e, c in denominator.terms}))
     for factor in cleared:
-        mp = _to_multipoly(sp.expand(factor), symbols)
-        factor_polys.append(mp)
-        if sign_over_box(mp, box) in (0, None):
+        if sign_over_box(factor, box) in (0, None):
             raise InputError(
                 where,
-                f"the factor {sp.sstr(factor)} may vanish inside the parameter box",
+                f"the factor {_factor_text(factor, names)} may vanish inside the parameter box",
                 "formulas whose denominators and common factors keep one sign over the tolerances",
             )
-    polys = tuple(_to_multipoly(sp.expand(c), symbols) for c in coeffs)
-    if len(polys) == 1:
+    if len(coeffs) == 1:
         raise InputError(where, f"the characteristic polynomial does not depend on {variable}",
                          f"degree >= 1 in {variable}")
     return UncertainPolynomial(
         names=tuple(names),
-        coefficients=polys,
+        coefficients=tuple(coeffs),
         box=box,
         nominal=tuple(nominal),
         rational=rational,
-        cleared=" * ".join(sp.sstr(f) for f in cleared),
-        factors=tuple(factor_polys),
+        cleared=" * ".join(_factor_text(f, names) for f in cleared),
+        factors=tuple(cleared),
         limits=tuple(limits),
     )
 

@@ -1,20 +1,92 @@
 """The forms a polynomial is written in, read into exact coefficients.
 
-Today: a polynomial in ``s`` written as text, or its coefficients. (The case-file forms,
-expression, coefficients and loop, are read in :mod:`robust.model.case`.)
+A polynomial in ``s`` written as text, or its coefficients; and the three forms of a case
+file (one expression, a list of coefficient formulas, a loop of plant and controller), each
+combined into one characteristic polynomial as an exact sparse quotient (numerator,
+denominator) over the slots (variable, *parameter names) of :func:`robust.model.expr.
+parse_formula`. Every product is paid for from one work account (:mod:`robust.exact.sparse`).
 """
 
 from __future__ import annotations
 
 from collections.abc import Sequence
 from fractions import Fraction
+from math import lcm
 
 from ..errors import InputError
 from ..exact import routh as _routh
+from ..exact import sparse
 from ..exact.routh import RouthTable
-from .expr import polynomial_coefficients
+from .expr import ParsedFormula, polynomial_coefficients
 
-__all__ = ["as_coefficients", "routh_table"]
+__all__ = ["as_coefficients", "coefficients_polynomial", "expression_polynomial",
+           "loop_polynomial", "routh_table"]
+
+Quotient = tuple[dict, dict]  # sparse numerator, sparse denominator
+
+
+def _written(parsed: ParsedFormula) -> Quotient:
+    """The formula's quotient as written, a constant denominator made positive."""
+    num, den = dict(parsed.expanded_numerator), dict(parsed.expanded_denominator)
+    if set(den) == {0} and den[0] < 0:
+        return sparse.negate(num), sparse.negate(den)
+    return num, den
+
+
+def _fraction(value) -> Fraction:
+    return Fraction(int(value.numerator), int(value.denominator))
+
+
+def _lowest_terms(quotient: Quotient) -> Quotient:
+    """Over a constant denominator, the integer multiple of num/den with the smallest
+    denominators cleared (0.1*s^2 + s + 1 -> s^2 + 10*s + 10 over 10), as one would write it."""
+    num, den = quotient
+    if set(den) != {0}:
+        return quotient
+    values = {m: _fraction(c) / _fraction(den[0]) for m, c in num.items()}
+    scale = lcm(*(v.denominator for v in values.values())) if values else 1
+    return ({m: int(v * scale) for m, v in values.items()}, sparse.constant(scale))
+
+
+def expression_polynomial(parsed: ParsedFormula) -> Quotient:
+    """The characteristic polynomial written as one expression."""
+    return _lowest_terms(_written(parsed))
+
+
+def coefficients_polynomial(items: Sequence[ParsedFormula], work: sparse.Work) -> Quotient:
+    """sum of c_i * s^(n - i) over a common denominator: the least common multiple of the
+    denominators of the c_i when they are monomials (R, 2*L*C), else their product."""
+    quotients = [_written(p) for p in items]
+    distinct: list[dict] = []
+    for _, den in quotients:
+        if den not in distinct:
+            distinct.append(den)
+    monomials = all(sparse.is_monomial(d) for d in distinct)
+    common = sparse.constant(1)
+    for den in distinct:
+        common = sparse.monomial_lcm(common, den) if monomials else sparse.multiply(common, den, work)
+    n = len(items) - 1
+    total: dict = {}
+    for i, (num, den) in enumerate(quotients):
+        if monomials:
+            cofactor = sparse.monomial_quotient(common, den)
+        else:
+            cofactor = sparse.constant(1)
+            for other in distinct:
+                if other != den:
+                    cofactor = sparse.multiply(cofactor, other, work)
+        term = sparse.multiply(num, cofactor, work)
+        sparse.add_into(total, {m + (n - i): c for m, c in term.items()})  # times s^(n-i)
+    return _lowest_terms((total, common))
+
+
+def loop_polynomial(plant: ParsedFormula, controller: ParsedFormula, work: sparse.Work) -> Quotient:
+    """den_P * den_C + num_P * num_C: unity negative feedback, numerators and denominators as
+    written (a pole-zero cancellation inside a formula must not hide a mode of the loop)."""
+    n_p, d_p = _written(plant)
+    n_c, d_c = _written(controller)
+    return _lowest_terms((sparse.add(sparse.multiply(d_p, d_c, work), sparse.multiply(n_p, n_c, work)),
+                          sparse.constant(1)))
 
 
 def as_coefficients(poly_or_coeffs: object, variable: str = "s") -> tuple[Fraction, ...]:

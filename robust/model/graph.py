@@ -13,12 +13,17 @@ direction. The point is then the corner where each parameter sits at its asked e
 
 from __future__ import annotations
 
+import os
+import tempfile
 from dataclasses import dataclass
 from fractions import Fraction
+from pathlib import Path
 
 import networkx as nx
 
+from ..errors import InputError
 from ..exact.interval import KHARITONOV_PATTERNS, IntervalPolynomial
+from ..exact.numbers import format_fraction
 from .family import Box, UncertainPolynomial
 
 __all__ = ["Realisation", "build_graph", "drivers", "realise_vertex", "write_graphml"]
@@ -51,12 +56,13 @@ def build_graph(family: UncertainPolynomial, box: Box | None = None,
     bounds = family.bounds(box)
     for name, lo, hi in zip(family.names, box.low, box.high, strict=True):
         graph.add_node(("parameter", name), kind="parameter", name=name,
-                       low=str(lo), high=str(hi))
+                       low=format_fraction(lo), high=format_fraction(hi))
     for k, coeff in enumerate(family.coefficients):
         power = n - k
         b = bounds[k]
         graph.add_node(("coefficient", power), kind="coefficient", power=power,
-                       formula=coeff.to_text(family.names), low=str(b.low), high=str(b.high),
+                       formula=coeff.to_text(family.names), low=format_fraction(b.low),
+                       high=format_fraction(b.high),
                        exact=b.exact)
         used = coeff.variables()
         for i, name in enumerate(family.names):
@@ -115,6 +121,26 @@ def realise_vertex(graph: nx.DiGraph, family: UncertainPolynomial, vertex: str,
 
 
 def write_graphml(graph: nx.DiGraph, path: str) -> None:
-    """Write the graph as GraphML (node ids flattened to text)."""
+    """Write the graph as GraphML (node ids flattened to text) to a new file.
+
+    The file appears complete or not at all (written beside it, then linked into place), and
+    an existing file (or link) at ``path`` is never replaced.
+
+    Raises
+    ------
+    InputError
+        When ``path`` exists.
+    """
     flat = nx.relabel_nodes(graph, {node: f"{node[0]}:{node[1]}" for node in graph.nodes})
-    nx.write_graphml(flat, path)
+    target = Path(path)
+    handle, partial = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".partial",
+                                       dir=target.absolute().parent)
+    try:
+        with os.fdopen(handle, "wb") as stream:
+            nx.write_graphml(flat, stream)
+        os.link(partial, target)  # fails when the target exists: nothing is overwritten
+    except FileExistsError:
+        raise InputError("graphml", "the file exists already; robust never overwrites it",
+                         "a new file name", str(target)) from None
+    finally:
+        os.unlink(partial)

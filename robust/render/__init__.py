@@ -25,11 +25,13 @@ from .figdata import sample_draws as sample_draws
 from .figdata import value_set_data as value_set_data
 from .writer import ReportFiles as ReportFiles
 from .writer import check_directory as check_directory
+from .writer import check_new_file as check_new_file
 from .writer import write_report as write_report
 
 __all__ = [
     "ReportFiles",
     "check_directory",
+    "check_new_file",
     "choose_omegas",
     "result_data",
     "sample_draws",

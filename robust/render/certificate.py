@@ -6,9 +6,10 @@ from __future__ import annotations
 
 from ..analysis.verdict import CheckResult, Witness
 from ..exact.interval import KharitonovVertex
+from ..exact.numbers import approx_text, percent_text
 from ..exact.routh import RouthTable
 from .blocks import Cell, Code, ItemList, Paragraph, Section, Table
-from .fmt import entry_cell, exact_cell, short
+from .fmt import entry_cell, exact_cell, witness_roots
 
 __all__ = ["certificate_section", "undecided_blocks", "witness_section"]
 
@@ -46,10 +47,8 @@ def _vertex_section(vertex: KharitonovVertex, degree: int) -> Section:
                              f"change(s); roots: {_roots_words(table.roots)}."), "note"))
     for special in table.special_rows:
         blocks.append(Paragraph(("Special row: " + special.describe() + ".",), "note"))
-    if table.counted_by_factors:
-        blocks.append(Paragraph(("The counts come from the factors of p = q·gcd(p(s), p(−s)), each "
-                                 "tabulated on its own (an ε row met roots symmetric about the origin).",),
-                                "note"))
+    if table.count_note:
+        blocks.append(Paragraph((table.count_note[0].upper() + table.count_note[1:] + ".",), "note"))
     return Section(f"{vertex.label}: {words}", tuple(blocks))
 
 
@@ -90,12 +89,13 @@ def witness_section(case, witness: Witness, title: str = "Witness: a parameter s
     for name, value in witness.parameters.items():
         p = case.parameter(name)
         rows.append((Cell((name,), mono=True), exact_cell(value),
-                     Cell((short(float(value), 8),), numeric=True),
-                     Cell((f"{short(float(p.low))} … {short(float(p.high))}",), numeric=True),
+                     Cell((approx_text(value, 8),), numeric=True),
+                     Cell((f"{approx_text(p.low)} … {approx_text(p.high)}",), numeric=True),
                      Cell((p.unit,))))
     table = Table(("parameter", "exact value", "value", "range", "unit"), tuple(rows))
-    values = witness.root_values()
-    shown = [f"{z.real:.6g} {'+' if z.imag >= 0 else '−'} {abs(z.imag):.6g}j" for z in values[:10]]
+    values = witness_roots(witness)
+    shown = ["not shown: the coefficients lie beyond the float range"] if values is None else [
+        f"{z.real:.6g} {'+' if z.imag >= 0 else '−'} {abs(z.imag):.6g}j" for z in values[:10]]
     blocks = (
         Paragraph((f"Found by: {witness.found_by}. Re-checked with the exact Routh array at these exact "
                    "rational values.",)),
@@ -109,11 +109,11 @@ def witness_section(case, witness: Witness, title: str = "Witness: a parameter s
 
 def undecided_blocks(result: CheckResult) -> list:
     """What an undecided check leaves open."""
-    blocks: list = [Paragraph((f"Unresolved: {float(result.unresolved):.3%} of the box volume is "
+    blocks: list = [Paragraph((f"Unresolved: {percent_text(result.unresolved, 3)} of the box volume is "
                                "neither proven stable nor refuted within the budget.",))]
     if result.largest_unproven is not None:
         box = result.largest_unproven
-        parts = ", ".join(f"{n} in [{short(float(a))}, {short(float(b))}]"
+        parts = ", ".join(f"{n} in [{approx_text(a)}, {approx_text(b)}]"
                           for n, (a, b) in zip(box.names, box.intervals, strict=True))
         blocks.append(Paragraph(("Largest unproven sub-box: " + parts + ".",)))
     blocks.append(Paragraph(("A larger --max-seconds budget may decide it.",), "note"))

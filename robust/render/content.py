@@ -12,6 +12,7 @@ from typing import Any
 
 from ..analysis.outcomes import Outcome, Verdict
 from ..analysis.signoff import Analysis
+from ..exact.numbers import approx_text
 from ..model.graph import build_graph
 from .blocks import (
     Badge,
@@ -27,7 +28,7 @@ from .blocks import (
     Table,
 )
 from .certificate import certificate_section, undecided_blocks, witness_section
-from .fmt import bound_text, short
+from .fmt import bound_text
 from .text import margin_reading
 
 __all__ = ["CAUTIONS", "JOB_LINE", "build_document", "outcome", "rerun_command"]
@@ -121,8 +122,8 @@ def _header(analysis: Analysis) -> Section:
 def _parameters(analysis: Analysis) -> Section:
     rows = []
     for p in analysis.case.parameters:
-        rows.append((Cell((p.name,), mono=True), Cell((short(float(p.nominal)),), numeric=True),
-                     Cell((f"{short(float(p.low))} … {short(float(p.high))}",), numeric=True),
+        rows.append((Cell((p.name,), mono=True), Cell((approx_text(p.nominal),), numeric=True),
+                     Cell((f"{approx_text(p.low)} … {approx_text(p.high)}",), numeric=True),
                      Cell((p.tolerance,)), Cell((p.unit,)), Cell((p.distribution,)), Cell((p.note,))))
     table = Table(("name", "nominal", "range", "tolerance", "unit", "distribution", "note"), tuple(rows))
     return Section("Parameters", (table, Paragraph(
@@ -143,7 +144,7 @@ def _polynomial(analysis: Analysis) -> Section:
         deps = [f"{param[1]} ({graph.edges[param, ('coefficient', power)]['direction']})"
                 for param in graph.predecessors(("coefficient", power))]
         rows.append((Cell((f"a{power}",), mono=True), Cell((formula,), mono=True),
-                     Cell((f"{short(float(b.low))} … {short(float(b.high))}",), numeric=True),
+                     Cell((f"{approx_text(b.low)} … {approx_text(b.high)}",), numeric=True),
                      Cell(("exact" if b.exact else "outer",)), Cell((", ".join(deps) or "constant",))))
     blocks: list = [
         Paragraph((f"As written in the case file (variable {case.variable}):",)),
@@ -211,7 +212,7 @@ def _margins(analysis: Analysis) -> Section:
             exact = f"{exact} = {bracket.decimal}" if len(exact) <= 60 else f"≈ {bracket.decimal}"
         if name in requirements:
             required, result = requirements[name]
-            asked = Cell((f"≥ {short(float(required))}",), numeric=True)
+            asked = Cell((f"≥ {approx_text(required)}",), numeric=True)
             verdict = Cell((_badge(result),))
         else:
             asked, verdict = Cell(("none",)), Cell(("-",))
@@ -241,7 +242,7 @@ def _margins(analysis: Analysis) -> Section:
         if m.decay.bracket.note:
             items.append((f"Decay-rate note: {m.decay.bracket.note}.",))
     if m.margin.witness is not None:
-        pts = ", ".join(f"{n} = {float(v):.6g}" for n, v in m.margin.witness.parameters.items())
+        pts = ", ".join(f"{n} = {approx_text(v, 6)}" for n, v in m.margin.witness.parameters.items())
         items.append(("Witness just beyond the margin: " + pts + ".",))
     for r in analysis.requirements:
         items.append((f"Decided directly: {r.wording}: ", _badge(r.outcome))
@@ -278,7 +279,7 @@ def _ranking(analysis: Analysis) -> Section:
                  Cell((acts,))]
         if failing:
             if p.restores:
-                cells.append(Cell((f"scale to ≤ {float(p.tightened or 0):.4g}",)))
+                cells.append(Cell((f"scale to ≤ {approx_text(p.tightened or 0, 4)}",)))
             elif p.restores is False:
                 cells.append(Cell(("does not help alone",)))
             else:

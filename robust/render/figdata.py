@@ -22,6 +22,7 @@ import numpy as np
 
 from ..analysis.montecarlo import draw_parameters
 from ..exact.interval import KHARITONOV_PATTERNS
+from ..exact.numbers import to_float
 from ..model.case import Case
 
 __all__ = ["choose_omegas", "nominal_roots", "polynomial_roots", "sample_draws", "value_set_data"]
@@ -54,7 +55,7 @@ def polynomial_roots(coefficients: np.ndarray) -> np.ndarray:
 def nominal_roots(case: Case) -> np.ndarray:
     """Roots of the nominal polynomial (floats, for pictures)."""
     family = case.family
-    coeffs = np.array([[float(c) for c in family.coefficients_at(family.nominal)]])
+    coeffs = np.array([[to_float(c) for c in family.coefficients_at(family.nominal)]])
     return polynomial_roots(coeffs)[0]
 
 

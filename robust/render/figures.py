@@ -11,11 +11,13 @@ import io
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
+from fractions import Fraction
 from typing import Any
 
 import numpy as np
 
 from ..analysis.signoff import Analysis
+from ..exact.numbers import to_float
 from .figdata import choose_omegas, nominal_roots, polynomial_roots, sample_draws, value_set_data
 
 __all__ = ["FIGURE_NAMES", "Picture", "draw_figures"]
@@ -77,14 +79,40 @@ def draw_figures(analysis: Analysis) -> tuple[Picture, ...]:
     import matplotlib
 
     case = analysis.case
-    draws = sample_draws(case, SAMPLED_MEMBERS, analysis.settings.seed)
     with matplotlib.rc_context(_STYLE):  # type: ignore[arg-type]  # rc names typed as literals
+        if not floats_suffice(case):
+            return (ranking_picture(analysis),
+                    _not_drawn("value_set", "value set of the coefficient overbound"),
+                    _not_drawn("root_cloud", "roots of sampled members"),
+                    dependency_picture(case))
+        draws = sample_draws(case, SAMPLED_MEMBERS, analysis.settings.seed)
         return (
             ranking_picture(analysis),
             value_set_picture(case, choose_omegas(case), draws),
             root_cloud_picture(case, draws, analysis.check.witness),
             dependency_picture(case),
         )
+
+
+def floats_suffice(case) -> bool:
+    """Whether the box and the coefficients' ranges fit comfortably in floats (the sampled
+    pictures are drawn in floats; their exact counterparts are the report's tables)."""
+    limit = Fraction(2) ** 900
+    values = [*case.family.box.low, *case.family.box.high]
+    for bound in case.family.bounds():
+        values += [bound.low, bound.high]
+    return all(v == 0 or 1 / limit < abs(v) < limit for v in values)
+
+
+def _not_drawn(name: str, what: str) -> Picture:
+    """A picture that says why it is not drawn."""
+    figure = _new_figure(7.6, 1.2)
+    ax = figure.subplots()
+    ax.set_axis_off()
+    text = (f"Not drawn: the {what} lie beyond the range of floating-point numbers "
+            "(about 1e±270 here); the exact results above cover them.")
+    ax.text(0.5, 0.5, text, ha="center", va="center", fontsize=9, wrap=True)
+    return Picture(name, _png(figure), text)
 
 
 # -- (a) value set ------------------------------------------------------------------------
@@ -336,8 +364,8 @@ def ranking_picture(analysis: Analysis) -> Picture:
     params = list(analysis.rank.parameters)
     figure = _new_figure(7.6, 0.4 * len(params) + 1.4)
     ax = figure.subplots()
-    alone = [float(p.margin_alone.lower) for p in params]
-    given = [float(p.margin_given_others.lower) for p in params]
+    alone = [to_float(p.margin_alone.lower) for p in params]
+    given = [to_float(p.margin_given_others.lower) for p in params]
     open_alone = [p.margin_alone.upper is None for p in params]
     open_given = [p.margin_given_others.upper is None for p in params]
     # a margin that ends where the model ends (a part's limit, a lost order, a factor at 0)

@@ -6,7 +6,7 @@ import math
 from decimal import ROUND_CEILING, ROUND_FLOOR, Decimal, localcontext
 from fractions import Fraction
 
-from ..exact.numbers import format_fraction
+from ..exact.numbers import approx_text, format_fraction, to_float
 from ..exact.routh import Entry, format_entry
 from .blocks import Cell
 
@@ -36,12 +36,22 @@ def bound_text(x: Fraction, upward: bool, digits: int = 7) -> str:
     return text
 
 
+def witness_roots(witness) -> list[complex] | None:
+    """The witness's roots as floats for display, or None when its coefficients lie beyond
+    the float range (the exact counts still say where the roots are)."""
+    values = [to_float(c) for c in witness.coefficients]
+    if not all(math.isfinite(v) and (v != 0 or c == 0) for v, c in zip(values, witness.coefficients,
+                                                                          strict=True)):
+        return None
+    return witness.root_values()
+
+
 def exact_cell(value: Fraction, mono: bool = True) -> Cell:
     """An exact rational; long ones shown as a float with the exact text kept."""
     text = format_fraction(value)
     if len(text) <= LONG:
         return Cell((text,), mono=mono, numeric=True)
-    return Cell(("≈" + short(float(value), 7),), full=text, mono=mono, numeric=True)
+    return Cell(("≈" + approx_text(value, 7),), full=text, mono=mono, numeric=True)
 
 
 def entry_cell(entry: Entry) -> Cell:

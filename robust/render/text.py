@@ -2,10 +2,12 @@
 
 from __future__ import annotations
 
+import math
 from fractions import Fraction
 
-from ..exact.numbers import format_fraction
+from ..exact.numbers import approx_text, format_fraction, percent_text, to_float
 from ..exact.routh import RouthTable, format_entry
+from .fmt import witness_roots
 
 __all__ = ["render_table", "roots_sentence"]
 
@@ -59,20 +61,24 @@ def render_table(table: RouthTable) -> str:
     for special in table.special_rows:
         lines.append("note: " + special.describe())
     signs = "".join("+" if s > 0 else "-" for s in table.first_column_signs)
-    lines.append(f"first-column signs: {signs}   sign changes: {table.sign_changes}")
-    if table.counted_by_factors:
-        lines.append("note: an ε row met roots symmetric about the origin, where the ε rule "
-                     "alone is unsound; the counts below come from p = q*g, "
-                     "g = gcd(p(s), p(-s)), each factor tabulated on its own")
+    shown = " (rows shown)" if table.omitted_rows else ""
+    lines.append(f"first-column signs{shown}: {signs}   sign changes: {table.sign_changes}")
+    if table.count_note:
+        lines.append("note: " + table.count_note)
     lines.append(roots_sentence(table))
     return "\n".join(lines)
+
+
+def _finite_or_none(x: float) -> float | None:
+    """A float for JSON, or None beyond the float range (JSON has no infinity)."""
+    return x if math.isfinite(x) else None
 
 
 def _fmt(value: Fraction) -> str:
     """Exact value, with a float beside it when the fraction is not short."""
     text = format_fraction(value)
     if len(text) > 12 or value.denominator != 1:
-        return f"{float(value):.6g}" + (f" (= {text})" if len(text) <= 24 else "")
+        return approx_text(value, 6) + (f" (= {text})" if len(text) <= 24 else "")
     return text
 
 
@@ -98,7 +104,8 @@ def render_check(case, result) -> str:
         what = {"degree": "the leading coefficient's range contains zero",
                 "sign": "a coefficient's range reaches zero or changes sign",
                 "vertex": "Kharitonov polynomial(s) " + ", ".join(kh.failing) + " not Hurwitz"}
-        lines.append(f"Interval overbound over the whole box: inconclusive ({what.get(kh.reason, kh.reason)})")
+        lines.append("Interval overbound over the whole box: inconclusive "
+                     f"({what.get(kh.reason, kh.reason)})")
     for v in result.vertex_tables:
         if v.table is None:
             continue
@@ -116,14 +123,19 @@ def render_check(case, result) -> str:
         for name, value in w.parameters.items():
             p = case.parameter(name)
             unit = f" {p.unit}" if p.unit else ""
-            lines.append(f"  {name} = {_fmt(value)}{unit}   [range {float(p.low):.6g} .. {float(p.high):.6g}]")
+            lines.append(f"  {name} = {_fmt(value)}{unit}   "
+                         f"[range {approx_text(p.low, 6)} .. {approx_text(p.high, 6)}]")
         lines.append(f"  roots: {_roots_line(w.roots)}")
-        shown = ", ".join(f"{z.real:.4g}{z.imag:+.4g}j" for z in w.root_values()[:6])
-        lines.append(f"  root values (floats, for display): {shown}")
+        values = witness_roots(w)
+        if values is None:
+            lines.append("  root values: not shown (the coefficients lie beyond the float range)")
+        else:
+            shown = ", ".join(f"{z.real:.4g}{z.imag:+.4g}j" for z in values[:6])
+            lines.append(f"  root values (floats, for display): {shown}")
     if result.verdict == "undecided":
-        lines.append(f"Unresolved: {float(result.unresolved):.3%} of the box volume")
+        lines.append(f"Unresolved: {percent_text(result.unresolved, 3)} of the box volume")
         if result.largest_unproven is not None:
-            parts = ", ".join(f"{n} in [{float(a):.6g}, {float(b):.6g}]"
+            parts = ", ".join(f"{n} in [{approx_text(a, 6)}, {approx_text(b, 6)}]"
                               for n, (a, b) in zip(result.largest_unproven.names,
                                                    result.largest_unproven.intervals, strict=True))
             lines.append(f"Largest unproven sub-box: {parts}")
@@ -133,6 +145,11 @@ def render_check(case, result) -> str:
 
 def trace_data(case, graph) -> dict:
     """JSON form of ``robust trace``."""
+    return _trace(case, graph)[0]
+
+
+def _trace(case, graph) -> tuple[dict, tuple]:
+    """The JSON form and the exact coefficient bounds it was made from."""
     fam = case.family
     bounds = fam.bounds()
     coefficients = []
@@ -143,7 +160,8 @@ def trace_data(case, graph) -> dict:
             deps[param[1]] = graph.edges[param, ("coefficient", power)]["direction"]
         coefficients.append({"power": power, "formula": coeff.to_text(fam.names),
                              "low": format_fraction(b.low), "high": format_fraction(b.high),
-                             "low_float": float(b.low), "high_float": float(b.high),
+                             "low_float": _finite_or_none(to_float(b.low)),
+                             "high_float": _finite_or_none(to_float(b.high)),
                              "bound": "exact" if b.exact else "outer", "parameters": deps})
     vertices = {}
     for node in graph.nodes:
@@ -151,19 +169,20 @@ def trace_data(case, graph) -> dict:
             from ..model.graph import drivers
 
             vertices[node[1]] = {name: dirs for name, dirs in drivers(graph, node[1]).items()}
-    return {"family_class": fam.kind, "degree": fam.degree, "parameters": list(fam.names),
-            "coefficients": coefficients, "vertices": vertices}
+    return ({"family_class": fam.kind, "degree": fam.degree, "parameters": list(fam.names),
+             "coefficients": coefficients, "vertices": vertices}, bounds)
 
 
 def render_trace(case, graph) -> str:
     """Parameter -> coefficient dependencies with directions, and the coefficient bounds."""
-    data = trace_data(case, graph)
+    data, bounds = _trace(case, graph)
     lines = [f"Case: {case.title}   [{case.path}]",
              f"Family: degree {data['degree']}, {data['family_class']} dependence", ""]
-    for c in data["coefficients"]:
+    for c, b in zip(data["coefficients"], bounds, strict=True):
         deps = ", ".join(f"{n} ({d})" for n, d in c["parameters"].items()) or "constant"
         lines.append(f"a{c['power']} (s^{c['power']}) = {c['formula']}")
-        lines.append(f"    range [{c['low_float']:.6g}, {c['high_float']:.6g}] ({c['bound']}); driven by: {deps}")
+        lines.append(f"    range [{approx_text(b.low)}, {approx_text(b.high)}] ({c['bound']}); "
+                     f"driven by: {deps}")
     lines.append("")
     lines.append("Directions: + the coefficient grows with the parameter over the whole box, "
                  "- it falls, mixed: both.")
@@ -171,8 +190,8 @@ def render_trace(case, graph) -> str:
 
 
 def _bracket_text(b) -> str:
-    upper = "no witness up to the cap" if b.upper is None else f"{float(b.upper):.9g}"
-    text = f"[{float(b.lower):.9g}, {upper}]"
+    upper = "no witness up to the cap" if b.upper is None else approx_text(b.upper, 9)
+    text = f"[{approx_text(b.lower, 9)}, {upper}]"
     if b.exact:
         text += f"   exact: {b.exact}" + (f" = {b.decimal}" if b.decimal else "")
     if b.note:
@@ -206,7 +225,7 @@ def render_margin(case, result) -> str:
              f"  what ends it: {result.limit.sentence()}",
              "  " + margin_reading(m, result.limit)]
     if m.witness is not None:
-        pts = ", ".join(f"{n} = {float(v):.6g}" for n, v in m.witness.parameters.items())
+        pts = ", ".join(f"{n} = {approx_text(v, 6)}" for n, v in m.witness.parameters.items())
         lines.append(f"  witness just beyond the margin: {pts}")
     if result.outcome is not None:
         lines.append(f"Requirement margin >= {float(result.requirement):g}: {result.outcome.word}")
@@ -253,7 +272,8 @@ def render_rank(case, result) -> str:
         lines.append("The design is not robustly stable. Tightening one tolerance alone (others as given):")
         for p in result.parameters:
             if p.restores:
-                lines.append(f"  {p.name}: scale its tolerance to at most {float(p.tightened):.4g} x the present one")
+                lines.append(f"  {p.name}: scale its tolerance to at most {approx_text(p.tightened, 4)} "
+                             "x the present one")
             elif p.restores is False:
                 lines.append(f"  {p.name}: no tightening of this part alone restores stability")
     lines.append("(no mark: a root crosses there; L: the part reaches its physical limit; D: the leading "
@@ -274,8 +294,8 @@ def render_yield(case, result) -> str:
              f"  exact re-checks of unclear float decisions: {result.exact_rechecks}"]
     if result.unstable_ranges:
         lines.append("  parameter ranges of the unstable draws:")
-        for name, a, b in result.unstable_ranges:
-            lines.append(f"    {name}: {a:.6g} .. {b:.6g}")
+        for name, a, b in result.unstable_ranges_exact:
+            lines.append(f"    {name}: {approx_text(a)} .. {approx_text(b)}")
     lines.append("A yield estimate is no proof: use `robust check` for the worst case.")
     return "\n".join(lines)
 
