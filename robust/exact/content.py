@@ -23,6 +23,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from fractions import Fraction
 from math import lcm
+from typing import Any
 
 import sympy as sp
 
@@ -42,9 +43,9 @@ def _leading_in(poly: MultiPoly, i: int) -> MultiPoly:
 
 def _univariate(poly: MultiPoly, i: int, point: Sequence) -> intpoly.Poly:
     """poly with every parameter but x_i fixed at ``point``, as an integer polynomial in x_i."""
-    values: dict[int, object] = {}
+    values: dict[int, Any] = {}  # GMP rationals
     for e, c in poly.terms:
-        term = c
+        term: Any = c
         for j, (k, x) in enumerate(zip(e, point, strict=True)):
             if k and j != i:
                 term = term * x**k
@@ -70,7 +71,8 @@ def _excluded(polys: Sequence[MultiPoly], i: int) -> bool:
 
 
 def _to_sympy(poly: MultiPoly, gens: Sequence[sp.Symbol]) -> sp.Poly:
-    mapping = {e: sp.QQ(int(c.numerator), int(c.denominator)) for e, c in poly.terms}
+    mapping = {e: sp.QQ(int(c.numerator), int(c.denominator))  # type: ignore[attr-defined]
+               for e, c in poly.terms}
     return sp.Poly.from_dict(mapping, *gens, domain=sp.QQ)
 
 

@@ -13,6 +13,7 @@ The sign of an entry as ε -> 0+ is that of its lowest-order terms.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 from . import intpoly
 from .numbers import mpq, mpz
@@ -140,7 +141,10 @@ def _term(numerator, denominator, k: int) -> str:
     return sign + (text if denominator == 1 else f"{text}/{denominator}")
 
 
-def _sum(terms: list[tuple[object, object, int]]) -> str:
+Term = tuple[Any, Any, int]  # (numerator, denominator, power); GMP integers in practice
+
+
+def _sum(terms: list[Term]) -> str:
     """A sum of terms (numerator, denominator, power), highest power first, as printed."""
     ordered = sorted(terms, key=lambda t: -t[2])
     if len(ordered) == 2 and ordered[1][2] == 0 and ordered[1][0] > 0 and ordered[0][0] < 0:
@@ -157,7 +161,7 @@ def _sum(terms: list[tuple[object, object, int]]) -> str:
     return text
 
 
-def _integer_terms(p: intpoly.Poly) -> list[tuple[object, object, int]]:
+def _integer_terms(p: intpoly.Poly) -> list[Term]:
     return [(c, 1, k) for k, c in enumerate(p) if c]
 
 

@@ -131,9 +131,14 @@ def _to_sympy(poly: Mapping, slots: Sequence[str]):
     return sp.Add(*terms)
 
 
+def _skip_space(text: str, pos: int) -> int:
+    match = _SPACE.match(text, pos)  # \s* matches everywhere, the empty string included
+    return match.end() if match else pos
+
+
 def _tokenize(text: str) -> list[_Token]:
     tokens: list[_Token] = []
-    pos = _SPACE.match(text).end()
+    pos = _skip_space(text, 0)
     while pos < len(text):
         match = _TOKEN.match(text, pos)
         if not match or match.end() == pos:
@@ -153,7 +158,7 @@ def _tokenize(text: str) -> list[_Token]:
         kind = match.lastgroup or "op"
         start = match.start(kind) + 1
         tokens.append(_Token(kind, match.group(kind), start))
-        pos = _SPACE.match(text, match.end()).end()
+        pos = _skip_space(text, match.end())
     tokens.append(_Token("end", "", len(text) + 1))
     return tokens
 
@@ -409,14 +414,14 @@ class _Parser:
             self.enter()
             if self.is_op(")"):
                 raise self.fail("empty parentheses", "an expression")
-            value = self.sum()
+            inner = self.sum()
             if not self.is_op(")"):
                 if self.token.kind == "end":
                     raise self.fail("unbalanced '(' (missing ')')", "')'", token)
                 raise self.unexpected()
             self.take()
             self.depth -= 1
-            return value
+            return inner
         if token.kind == "end":
             raise self.fail("formula ends too early", "a number, a name or '('")
         raise self.fail(f"unexpected {token.text!r}", "a number, a name or '('")

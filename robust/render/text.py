@@ -38,7 +38,7 @@ def render_table(table: RouthTable) -> str:
     rows = table.rows
     cells = [[format_entry(e) for e in row.entries] for row in rows]
     width = max((len(c) for row in cells for c in row), default=1)
-    marks = {}
+    marks: dict[int, list] = {}
     for special in table.special_rows:
         marks.setdefault(special.power, []).append(special)
     lines = []
