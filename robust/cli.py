@@ -232,8 +232,8 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
     """Show which parameter drives which coefficient, in which direction, and the bounds."""
     from .model.case import load_case
     from .model.graph import build_graph, write_graphml
-    from .render import check_new_file
     from .render.text import render_trace, trace_data
+    from .render.writer import check_new_file
 
     if graphml is not None:
         check_new_file(graphml, "--graphml")
@@ -394,7 +394,8 @@ def report_command(case: str, directory: str, max_boxes: int, search_boxes: int,
     """
     from .analysis.signoff import analyse
     from .model.case import load_case
-    from .render import check_directory, result_data, write_report
+    from .render.data import result_data
+    from .render.writer import check_directory, write_report
 
     check_directory(directory)
     loaded = load_case(case)
@@ -424,7 +425,7 @@ def demo_command(directory: str) -> None:
 
     from .analysis.signoff import analyse
     from .model.case import load_case
-    from .render import check_directory, write_report
+    from .render.writer import check_directory, write_report
 
     source = resources.files("robust") / "data" / "demo.toml"
     text = source.read_bytes()

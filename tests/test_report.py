@@ -23,8 +23,10 @@ from robust.analysis.signoff import analyse
 from robust.cli import main
 from robust.errors import InputError
 from robust.model.case import load_case
-from robust.render import choose_omegas, result_data, sample_draws, value_set_data, write_report
+from robust.render.data import result_data
+from robust.render.figdata import choose_omegas, sample_draws, value_set_data
 from robust.render.figures import FIGURE_NAMES
+from robust.render.writer import write_report
 
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
 IDS = [path.stem for path in CASES]
