@@ -358,7 +358,7 @@ def _summary_lines(analysis, files) -> list[str]:
     if crossing:
         top = crossing[0]
         lines.append(f"Most critical parameter: {top.name} "
-                     f"(alone, a root crosses at x{float(top.margin_alone.lower):.4g} of its tolerance)")
+                     f"(alone, a root crosses at x{approx_text(top.margin_alone.lower, 4)} of its tolerance)")
     elif analysis.rank.parameters:
         lines.append("No single part makes a root cross on its own before its limit or the cap")
     y = analysis.yield_result

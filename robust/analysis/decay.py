@@ -10,7 +10,7 @@ import time
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
-from ..exact.numbers import short_between, to_float
+from ..exact.numbers import approx_text, json_float, short_between, to_float
 from ..exact.routh import routh_table
 from ..model.family import UncertainPolynomial, shifted_family
 from .bracket import Bracket, Work, bisect_margin, just_below
@@ -39,13 +39,13 @@ class DecayResult:
     def settling_time(self) -> float | None:
         """About 4/sigma seconds to settle within 2 % (common practice, no source)."""
         low = self.bracket.lower
-        return None if low <= 0 else 4.0 / float(low)
+        return None if low <= 0 else json_float(4 / low)
 
     def as_dict(self) -> dict[str, object]:
         """JSON form."""
         data = self.bracket.as_dict()
         data["settling_time_2pct_at_most"] = self.settling_time()
-        data["requirement"] = None if self.requirement is None else float(self.requirement)
+        data["requirement"] = json_float(self.requirement)
         data["outcome"] = None if self.outcome is None else self.outcome.value
         data["passed"] = self.passed
         return data
@@ -90,7 +90,7 @@ def _decay_upper(family: UncertainPolynomial, seed: int = 0):
         table = routh_table(list(exact_coeffs), shift=sigma)
         if not table.is_hurwitz:
             return sigma, Witness(family.names, tuple(point), exact_coeffs, table.roots,
-                                  f"slowest sampled member (roots counted right of Re(s) = -{float(sigma):.6g})")
+                                  f"slowest sampled member (roots counted right of Re(s) = -{approx_text(sigma)})")
     return None
 
 

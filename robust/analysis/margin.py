@@ -30,7 +30,7 @@ import time
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
-from ..exact.numbers import short_between
+from ..exact.numbers import json_float, short_between
 from ..exact.routh import routh_table
 from ..model.family import UncertainPolynomial
 from .bracket import Bracket, Work, bisect_margin, float_down, float_up, just_below, scaled_tester
@@ -76,7 +76,7 @@ class MarginResult:
             "limit": self.limit.as_dict(),
             "margin_detail": self.margin.as_dict(),
             "method": self.method,
-            "requirement": None if self.requirement is None else float(self.requirement),
+            "requirement": json_float(self.requirement),
             "outcome": None if self.outcome is None else self.outcome.value,
             "passed": self.passed,
             "safety_stop": self.safety_stop,

@@ -29,7 +29,7 @@ from fractions import Fraction
 import numpy as np
 from scipy import stats
 
-from ..exact.numbers import binary_exponent, format_fraction, to_float
+from ..exact.numbers import binary_exponent, format_fraction, json_float, to_float
 from ..exact.routh import is_hurwitz
 
 __all__ = ["YieldResult", "draw_parameters", "estimate_yield", "float_routh_screen"]
@@ -71,16 +71,13 @@ class YieldResult:
             "interval": list(self.interval),
             "seed": self.seed,
             "exact_rechecks": self.exact_rechecks,
-            "unstable_ranges": {n: [_finite_or_none(lo), _finite_or_none(hi)]
+            "unstable_ranges": {n: [json_float(lo), json_float(hi)]
                                 for n, lo, hi in self.unstable_ranges},
             "unstable_ranges_exact": {n: [format_fraction(lo), format_fraction(hi)]
                                       for n, lo, hi in self.unstable_ranges_exact},
             "seconds": round(self.seconds, 3),
         }
 
-
-def _finite_or_none(x: float) -> float | None:
-    return x if math.isfinite(x) else None
 
 
 def _scales(case) -> np.ndarray:

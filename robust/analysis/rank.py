@@ -23,7 +23,7 @@ import time
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
-from ..exact.numbers import short_between
+from ..exact.numbers import json_float, short_between
 from ..model.family import UncertainPolynomial
 from ..model.graph import build_graph
 from .bracket import Bracket, Work, bisect_margin, float_down, just_below, scaled_tester
@@ -68,7 +68,7 @@ class ParameterRank:
             "margin_given_others_bracket": self.margin_given_others.as_dict(),
             "acts_through": [{"power": p, "direction": d} for p, d in self.coefficients],
             "tolerance": self.tolerance,
-            "tightened_scale": None if self.tightened is None else float(self.tightened),
+            "tightened_scale": json_float(self.tightened),
             "restores_stability_alone": self.restores,
         }
 

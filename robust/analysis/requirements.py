@@ -6,7 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from fractions import Fraction
 
-from ..exact.numbers import format_fraction
+from ..exact.numbers import approx_text, format_fraction, json_float
 from ..model.family import UncertainPolynomial, shifted_family
 from .outcomes import BoxProblem, Outcome, Verdict, box_problem, requirement_outcome
 from .scaling import Scaling
@@ -45,11 +45,11 @@ class RequirementCheck:
     @property
     def wording(self) -> str:
         """What the requirement asks, in words."""
-        return _WORDS[self.name].format(v=f"{float(self.required):g}")
+        return _WORDS[self.name].format(v=approx_text(self.required))
 
     def as_dict(self) -> dict[str, object]:
         """JSON form."""
-        return {"required": float(self.required), "required_exact": format_fraction(self.required),
+        return {"required": json_float(self.required), "required_exact": format_fraction(self.required),
                 "outcome": self.outcome.value, "passed": self.passed,
                 "direct": None if self.direct is None else self.direct.value,
                 "witness": self.witness.as_dict() if self.witness else None,

@@ -31,7 +31,7 @@ from fractions import Fraction
 import numpy as np
 
 from ..exact.interval import IntervalPolynomial, KharitonovResult, KharitonovVertex, kharitonov_test
-from ..exact.numbers import format_fraction, to_float
+from ..exact.numbers import format_fraction, json_float, to_float
 from ..exact.polynomials import Bound, as_intervals
 from ..exact.routh import RootCounts, is_hurwitz, routh_table
 from ..model.family import Box, UncertainPolynomial
@@ -96,7 +96,7 @@ class Witness:
         """JSON form (DESIGN.md section 5) with extras."""
         return {
             "parameters": {n: format_fraction(v) for n, v in zip(self.names, self.point, strict=True)},
-            "parameters_float": {n: float(v) for n, v in zip(self.names, self.point, strict=True)},
+            "parameters_float": {n: json_float(v) for n, v in zip(self.names, self.point, strict=True)},
             "roots": self.roots.as_dict(),
             "coefficients": [format_fraction(c) for c in self.coefficients],
             "root_values": [[z.real, z.imag] for z in self.root_values()],

@@ -32,6 +32,7 @@ __all__ = [
     "from_mpq",
     "gcd",
     "integer_text",
+    "json_float",
     "mpq",
     "mpz",
     "parse_number",
@@ -171,6 +172,15 @@ def to_float(value: Fraction | int) -> float:
         return float(value)
     except OverflowError:
         return math.inf if value > 0 else -math.inf
+
+
+def json_float(value: Fraction | int | float | None) -> float | None:
+    """A number as a JSON float: the nearest float, or None beyond the float range (JSON has
+    no infinity); the exact value goes beside it as text where it matters."""
+    if value is None:
+        return None
+    f = value if isinstance(value, float) else to_float(value)
+    return f if math.isfinite(f) else None
 
 
 def approx_text(value, digits: int = 6) -> str:

@@ -2,10 +2,9 @@
 
 from __future__ import annotations
 
-import math
 from fractions import Fraction
 
-from ..exact.numbers import approx_text, format_fraction, percent_text, to_float
+from ..exact.numbers import approx_text, format_fraction, json_float, percent_text
 from ..exact.routh import RouthTable, format_entry
 from .fmt import witness_roots
 
@@ -68,10 +67,6 @@ def render_table(table: RouthTable) -> str:
     lines.append(roots_sentence(table))
     return "\n".join(lines)
 
-
-def _finite_or_none(x: float) -> float | None:
-    """A float for JSON, or None beyond the float range (JSON has no infinity)."""
-    return x if math.isfinite(x) else None
 
 
 def _fmt(value: Fraction) -> str:
@@ -160,8 +155,8 @@ def _trace(case, graph) -> tuple[dict, tuple]:
             deps[param[1]] = graph.edges[param, ("coefficient", power)]["direction"]
         coefficients.append({"power": power, "formula": coeff.to_text(fam.names),
                              "low": format_fraction(b.low), "high": format_fraction(b.high),
-                             "low_float": _finite_or_none(to_float(b.low)),
-                             "high_float": _finite_or_none(to_float(b.high)),
+                             "low_float": json_float(b.low),
+                             "high_float": json_float(b.high),
                              "bound": "exact" if b.exact else "outer", "parameters": deps})
     vertices = {}
     for node in graph.nodes:
@@ -201,19 +196,19 @@ def _bracket_text(b) -> str:
 
 def margin_reading(bracket, limit) -> str:
     """What rho* means for the design, in plain words (shared by the terminal and the report)."""
-    lower = float(bracket.lower)
+    lower = approx_text(bracket.lower, 4)
     if limit.kind.value == "cap":
-        return f"Proven stable with every tolerance up to x{lower:.4g} as wide; no end was found before."
+        return f"Proven stable with every tolerance up to x{lower} as wide; no end was found before."
     if limit.kind.value != "crossing":
-        return (f"Proven stable up to x{lower:.4g}. Past x{float(limit.scale):.6g} the scaled box no "
+        return (f"Proven stable up to x{lower}. Past x{approx_text(limit.scale)} the scaled box no "
                 "longer stands for the hardware: this end is a property of the model, not stability "
                 "headroom, and nothing is claimed beyond it.")
     if bracket.upper is not None and bracket.upper <= 1:
         return (f"Not stable over the stated tolerances: every tolerance would have to shrink to "
-                f"x{lower:.4g} of its width.")
+                f"x{lower} of its width.")
     if lower >= 1:
-        return f"Stable over the stated tolerances; every tolerance could be x{lower:.4g} as wide."
-    return f"Proven stable up to x{lower:.4g} of the stated tolerances."
+        return f"Stable over the stated tolerances; every tolerance could be x{lower} as wide."
+    return f"Proven stable up to x{lower} of the stated tolerances."
 
 
 def render_margin(case, result) -> str:
@@ -228,7 +223,7 @@ def render_margin(case, result) -> str:
         pts = ", ".join(f"{n} = {approx_text(v, 6)}" for n, v in m.witness.parameters.items())
         lines.append(f"  witness just beyond the margin: {pts}")
     if result.outcome is not None:
-        lines.append(f"Requirement margin >= {float(result.requirement):g}: {result.outcome.word}")
+        lines.append(f"Requirement margin >= {approx_text(result.requirement)}: {result.outcome.word}")
     if result.decay is not None:
         d = result.decay
         lines.append(f"Decay-rate margin sigma* (every root has Re(s) < -sigma): {_bracket_text(d.bracket)}")
@@ -236,7 +231,7 @@ def render_margin(case, result) -> str:
         if settle is not None:
             lines.append(f"  worst-case 2 % settling time about 4/sigma = {settle:.4g} s (common rule of thumb)")
         if d.outcome is not None:
-            lines.append(f"Requirement decay_rate >= {float(d.requirement):g}: {d.outcome.word}")
+            lines.append(f"Requirement decay_rate >= {approx_text(d.requirement)}: {d.outcome.word}")
     if result.safety_stop:
         lines.append("Note: the wall-clock safety limit stopped the search early; a re-run may differ.")
     lines.append(f"Time: {result.seconds:.2f} s")
@@ -245,7 +240,7 @@ def render_margin(case, result) -> str:
 
 def _scale_cell(bracket, limit) -> str:
     """A rank cell: the margin, marked by what ends it when that is not a crossing."""
-    value = f"{float(bracket.lower):.6g}"
+    value = approx_text(bracket.lower, 6)
     mark = {"crossing": "", "physical_limit": " L", "degree_loss": " D", "denominator": " F", "cap": "+"}
     return value + mark[limit.kind.value] + ("?" if not limit.proven else "")
 
