@@ -50,6 +50,8 @@ __all__ = [
 
 DEFAULT_MAX_SECONDS = 600.0  # a safety stop only: the work budget is DEFAULT_MAX_BOXES
 DEFAULT_MAX_BOXES = 20_000
+#: Above this degree check does not attach the Kharitonov polynomials' full Routh tables.
+MAX_TABLE_DEGREE = 40
 
 METHOD_TEXT = {
     "nominal": "nominal point, exact Routh array",
@@ -182,6 +184,11 @@ class _Budget:
 
     def elapsed(self) -> float:
         return time.perf_counter() - self.start
+
+    @property
+    def deadline(self) -> float:
+        """When the safety stop fires."""
+        return self.start + self.max_seconds
 
     def exhausted(self) -> bool:
         if self.boxes >= self.max_boxes:
@@ -360,7 +367,9 @@ def decide(
         method = "kharitonov-vertex" if kh.reason == "vertex" else "coefficient-sign"
         return result("unstable", method, w, reason=f"{w.found_by}: not Hurwitz")
     if search:
-        found = search_witness(family, box, seed=seed, max_corners=64)
+        # the safety stop bounds the search too (and, when it cuts it, is reported as such)
+        found = search_witness(family, box, seed=seed, max_corners=64, deadline=budget.deadline)
+        budget.exhausted()
         if found is not None:
             w = make_witness(family, found[0], found[1], box)
             if w is not None:
@@ -455,7 +464,8 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
                 w = _realise_failure(family, sub, kh)
             if w is None and depth >= 4 and depth % 4 == 0 and depth not in searched_depths:
                 searched_depths.add(depth)
-                found = search_witness(family, sub, seed=seed + depth, samples=64, local=2)
+                found = search_witness(family, sub, seed=seed + depth, samples=64, local=2,
+                                       deadline=budget.deadline)
                 if found is not None:
                     w = make_witness(family, found[0], found[1] + " (sub-box)", box)
             if w is not None:
@@ -505,9 +515,12 @@ def check(
     """
     family = getattr(case_or_family, "family", case_or_family)
     res = decide(family, family.box, max_seconds, max_boxes, progress, True, seed)
-    tables = kharitonov_test(res.overbound.family, tables=True, reduced=False) \
-        if res.overbound.family.degree_invariant else res.overbound
+    # the four full tables are for people to read: beyond a degree where nobody reads them
+    # they would cost more than the decision itself (degree 200: 20 s), so they are left out
+    if not res.overbound.family.degree_invariant or family.degree > MAX_TABLE_DEGREE:
+        return res
     from dataclasses import replace
 
+    tables = kharitonov_test(res.overbound.family, tables=True, reduced=False)
     return replace(res, vertex_tables=tables.vertices)
 
