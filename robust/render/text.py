@@ -206,7 +206,7 @@ def margin_reading(bracket, limit) -> str:
     if bracket.upper is not None and bracket.upper <= 1:
         return (f"Not stable over the stated tolerances: every tolerance would have to shrink to "
                 f"x{lower} of its width.")
-    if lower >= 1:
+    if bracket.lower >= 1:
         return f"Stable over the stated tolerances; every tolerance could be x{lower} as wide."
     return f"Proven stable up to x{lower} of the stated tolerances."
 
