@@ -13,8 +13,8 @@ _INTERRUPTED = 130
 
 
 def _leave_interrupted() -> None:
-    """Exit 130 now. An interrupt that lands inside code a library runs through exec() marks
-    the interpreter as interrupted even when it is handled, and Python would then end by
+    """Exit 130 now. An interrupt that lands inside code a library runs through the exec
+    builtin marks the interpreter as interrupted even when it is handled, and Python would then end by
     killing itself with SIGINT instead of exiting 130; os._exit leaves no room for that."""
     for stream in (sys.stdout, sys.stderr):
         with contextlib.suppress(OSError, ValueError):  # a closed pipe: nothing more to say
