@@ -38,6 +38,7 @@ from ..model.family import Box, UncertainPolynomial
 from .edges import box_edges, check_segment
 from .outcomes import Verdict
 from .search import batch_worst_angle, search_witness
+from .subbox import Conditions, hurwitz_conditions, try_box
 
 __all__ = [
     "DEFAULT_MAX_BOXES",
@@ -60,7 +61,9 @@ METHOD_TEXT = {
     "coefficient-sign": "a coefficient bound realised by one parameter point (sign condition)",
     "search": "witness search (corners, samples, local optimisation), exact re-check",
     "edges": "edge theorem, every box edge decided exactly",
-    "subdivision": "box subdivision, interval overbound + Kharitonov on every sub-box",
+    "subdivision": "box subdivision, every sub-box proven by Bernstein expansion of its Hurwitz "
+                   "conditions or by its interval overbound + Kharitonov",
+    "bernstein": "Bernstein expansion of the Hurwitz conditions (a_n, a_0, Delta_(n-1)) over the box",
 }
 
 Progress = Callable[[Fraction, int, float], None]
@@ -320,6 +323,7 @@ def decide(
     progress: Progress | None = None,
     search: bool = True,
     seed: int = 0,
+    sub_box_test: str = "auto",
 ) -> CheckResult:
     """Decide robust Hurwitz stability of ``family`` over ``box`` (default: its own box).
 
@@ -332,7 +336,14 @@ def decide(
     search
         Run the witness search before subdividing (off for margin bisection, where the
         caller searches itself).
+    sub_box_test
+        ``"auto"``: the Bernstein test of the Hurwitz conditions on the whole box and in
+        subdivision wherever the family's conditions fit (:mod:`.subbox`), the interval
+        overbound + Kharitonov elsewhere; ``"overbound"``: the overbound alone (the
+        reference the benchmarks compare with).
     """
+    if sub_box_test not in ("auto", "overbound"):
+        raise ValueError(f"sub_box_test must be 'auto' or 'overbound', not {sub_box_test!r}")
     box = box or family.box
     budget = _Budget(max_seconds, max_boxes)
     kind = family.kind
@@ -366,6 +377,18 @@ def decide(
     if w is not None:
         method = "kharitonov-vertex" if kh.reason == "vertex" else "coefficient-sign"
         return result("unstable", method, w, reason=f"{w.found_by}: not Hurwitz")
+    conditions = (hurwitz_conditions(family, start_point)
+                  if sub_box_test == "auto" and family.structure != "independent" else None)
+    if conditions is not None:
+        budget.boxes += 1
+        test = try_box(conditions, family, box)
+        if test.status == "proven":
+            return result("stable", "bernstein", reason="a_n, a_0 and Delta_(n-1) are positive over "
+                          "the whole box (every Bernstein coefficient) and one point is Hurwitz")
+        if test.point is not None:
+            w = make_witness(family, test.point, f"box corner where the {test.failing} fails", box)
+            if w is not None:
+                return result("unstable", "bernstein", w, reason=f"{w.found_by}: not Hurwitz")
     if search:
         # the safety stop bounds the search too (and, when it cuts it, is reported as such)
         found = search_witness(family, box, seed=seed, max_corners=64, deadline=budget.deadline)
@@ -394,7 +417,7 @@ def decide(
             if note:
                 return result("undecided", "edges", unresolved=Fraction(1), largest=box,
                               edges=count, reason=note)
-    return _subdivide(family, box, budget, progress, result, seed)
+    return _subdivide(family, box, budget, progress, result, seed, conditions)
 
 
 def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
@@ -436,7 +459,12 @@ def worst_root_angle_many(family: UncertainPolynomial, points: Sequence[Sequence
     return batch_worst_angle(family.coefficients_float(array))
 
 
-def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, result, seed: int):
+def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, result, seed: int,
+               conditions: Conditions | None = None):
+    """Branch and bound over sub-boxes, largest first. Each sub-box is proven by the
+    Bernstein test of the Hurwitz conditions when the family has them (:mod:`.subbox`),
+    else by its own overbound + Kharitonov; what resists is split along the parameter the
+    test blames, after its centre (and what the test points at) is tried as a witness."""
     heap: list[tuple[Fraction, int, Box, int, object]] = [(-Fraction(1), 0, box, 0, None)]
     counter = 1
     proven_volume = Fraction(0)
@@ -450,17 +478,26 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
         neg_vol, _, sub, depth, known = heapq.heappop(heap)
         budget.boxes += 1
         max_depth = max(max_depth, depth)
-        bounds, directions = family.bounds_and_directions(sub, known)
-        kh = kharitonov_test(_interval_of(bounds))
-        if kh.stable:
+        if conditions is not None:
+            test = try_box(conditions, family, sub, known)
+            ok, kh, directions, blame, inherit = (test.status == "proven", None, None, test.blame,
+                                                  test.patches)
+            pointed = test.point
+        else:
+            bounds, directions = family.bounds_and_directions(sub, known)
+            kh = kharitonov_test(_interval_of(bounds))
+            ok, blame, inherit, pointed = kh.stable, None, directions, None
+        if ok:
             proven_volume += -neg_vol
             proven += 1
         else:
             center = sub.center
             w = None
-            if worst_root_angle_many(family, [center])[0] > -1e-6:
+            if pointed is not None:
+                w = make_witness(family, pointed, "corner of a sub-box where a stability condition fails", box)
+            if w is None and worst_root_angle_many(family, [center])[0] > -1e-6:
                 w = make_witness(family, center, "centre of a sub-box", box)
-            if w is None and kh.reason in ("sign", "degree", "vertex"):
+            if w is None and kh is not None and kh.reason in ("sign", "degree", "vertex"):
                 w = _realise_failure(family, sub, kh)
             if w is None and depth >= 4 and depth % 4 == 0 and depth not in searched_depths:
                 searched_depths.add(depth)
@@ -471,18 +508,25 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
             if w is not None:
                 return result("unstable", "subdivision", w, reason=f"{w.found_by}: not Hurwitz",
                               proven=proven, depth=max_depth)
-            i = _split_index(family, sub, kh, directions)
-            for half in sub.split(i):
+            i = blame if blame is not None else _split_index(family, sub, kh, directions)
+            halves = sub.split(i)
+            if conditions is not None and inherit is not None:  # de Casteljau: no re-expansion
+                parts = tuple(zip(*(patch.halves(i) for patch in inherit), strict=True))
+            else:
+                parts = (inherit, inherit)
+            for half, part in zip(halves, parts, strict=True):
                 # midpoint splits halve the volume exactly
-                heapq.heappush(heap, (neg_vol / 2, counter, half, depth + 1, directions))
+                heapq.heappush(heap, (neg_vol / 2, counter, half, depth + 1, part))
                 counter += 1
         now = time.perf_counter()
         if progress is not None and now - last_report > 0.5:
             progress(proven_volume, budget.boxes, budget.elapsed())
             last_report = now
+    how = ("its Hurwitz conditions proven positive by Bernstein expansion" if conditions is not None
+           else "its own overbound + Kharitonov")
     if not heap:
         return result("stable", "subdivision", proven=proven, depth=max_depth,
-                      reason=f"{proven} sub-boxes, each proven by its own overbound + Kharitonov")
+                      reason=f"{proven} sub-boxes, each proven by {how}")
     unresolved = 1 - proven_volume
     # among the largest boxes left, name the one whose centre is closest to instability
     top = [entry for entry in heap if entry[0] == heap[0][0]][:256]

@@ -1,0 +1,173 @@
+"""Sub-box tests that keep the correlation between coefficients.
+
+The interval overbound + Kharitonov test forgets that two coefficients share a parameter, so
+its error shrinks only linearly with the box and subdivision explodes with the number of
+parameters. The test here works on the parameters themselves.
+
+Zero-exclusion by conditions (Frazer and Duncan 1929; Zettler and Garloff, IEEE TAC 43(3),
+1998). Over a connected box on which the coefficients stay polynomials in the parameters, a
+root can only leave the open left half-plane through s = 0 (a_0 = 0), through s = j*w with
+w != 0 (then the pair s, -s are roots and the Hurwitz determinant Delta_(n-1) = 0, by
+Orlando's formula), or through infinity (a_n = 0). So when a_n, a_0 and Delta_(n-1) keep a
+strict sign over the box and one point of the box is Hurwitz, every point is. Each condition
+is a polynomial in the parameters; its Bernstein expansion over the box
+(:mod:`robust.exact.bernstein`) proves the sign when every coefficient has it, refutes it when
+a corner coefficient (a value at a corner) has the other sign, and otherwise says which
+parameter to split. Multilinear conditions (a_n and a_0 of a multilinear family) have
+Bernstein coefficients equal to their corner values: there the test is exact at once, the
+vertex property that the mapping theorem uses for value sets.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+from fractions import Fraction
+
+from ..errors import InputError
+from ..exact import sparse
+from ..exact.bernstein import Patch, bernstein_patch, tensor_size
+from ..exact.hurwitz import hurwitz_determinant_terms
+from ..exact.polynomials import MultiPoly
+from ..exact.routh import is_hurwitz
+from ..model.family import Box, UncertainPolynomial
+
+__all__ = ["MAX_COEFFICIENTS", "Conditions", "SubBoxTest", "hurwitz_conditions", "try_box"]
+
+#: Above this many Bernstein coefficients per box (all conditions together) the test costs
+#: more than the interval overbound's subdivision saves; the engine keeps Kharitonov then.
+MAX_COEFFICIENTS = 60_000
+#: Term products allowed when multiplying out Delta_(n-1) in the parameters.
+MAX_PRODUCTS = 2_000_000
+#: Parent patches are handed to the halves (no re-expansion) when this small.
+KEEP_COEFFICIENTS = 4096
+
+LABELS = ("leading coefficient", "constant coefficient", "Hurwitz determinant Delta_(n-1)")
+
+
+@dataclass(frozen=True, slots=True)
+class Conditions:
+    """Polynomials in the parameters whose positivity over a box with one Hurwitz point
+    proves the box (sign-normalised at a Hurwitz point)."""
+
+    polys: tuple[MultiPoly, ...]
+    labels: tuple[str, ...]
+    size: int
+
+
+@dataclass(frozen=True, slots=True)
+class SubBoxTest:
+    """What :func:`try_box` found.
+
+    ``status``: ``proven`` (every point of the box is Hurwitz), ``point`` (a corner where a
+    condition fails, or the box's Hurwitz check point failed: the caller re-checks it as a
+    witness), or ``inconclusive`` (split ``blame``). ``patches`` are the conditions'
+    Bernstein patches over the box (for the halves), ``failing`` the label that resisted.
+    """
+
+    status: str
+    point: tuple[Fraction, ...] | None
+    blame: int | None
+    patches: tuple[Patch, ...] | None
+    failing: str = ""
+
+
+def _to_sparse(poly: MultiPoly) -> dict:
+    out = {}
+    for exps, c in poly.terms:
+        packed = sum(e << (sparse.BITS * i) for i, e in enumerate(exps))
+        out[packed] = int(c) if c.denominator == 1 else c
+    return out
+
+
+def _delta(coefficients: Sequence[MultiPoly], nvars: int) -> MultiPoly | None:
+    """Delta_(n-1) of the family as a polynomial in the parameters (None: too large)."""
+    n = len(coefficients) - 1
+    terms = hurwitz_determinant_terms(n, n - 1)
+    work = sparse.Work(MAX_PRODUCTS)
+    coeffs = [_to_sparse(c) for c in coefficients]
+    products: dict[tuple[int, ...], dict] = {(0,) * (n + 1): sparse.constant(1)}
+
+    def product(exps: tuple[int, ...]) -> dict:
+        cached = products.get(exps)
+        if cached is None:
+            k = max(i for i, e in enumerate(exps) if e)
+            smaller = list(exps)
+            smaller[k] -= 1
+            cached = sparse.multiply(product(tuple(smaller)), coeffs[k], work)
+            products[exps] = cached
+        return cached
+
+    total: dict = {}
+    try:
+        for exps, c in terms:
+            sparse.add_into(total, sparse.scale(product(exps), c))
+    except InputError:  # the work account refused: too large to multiply out here
+        return None
+    return sparse.to_multipoly(total, nvars)
+
+
+def _delta_size_bound(coefficients: Sequence[MultiPoly], nvars: int) -> int:
+    """An upper bound on Delta_(n-1)'s Bernstein tensor size, from the degrees alone."""
+    n = len(coefficients) - 1
+    degrees = [[c.degree_in(i) for i in range(nvars)] for c in coefficients]
+    size = 1
+    for i in range(nvars):
+        size *= 1 + max((sum(e * degrees[k][i] for k, e in enumerate(exps) if e)
+                         for exps, _ in hurwitz_determinant_terms(n, n - 1)), default=0)
+    return size
+
+
+def hurwitz_conditions(family: UncertainPolynomial, point: Sequence[Fraction]) -> Conditions | None:
+    """a_n, a_0 and Delta_(n-1) in the parameters, each signed to be positive at the Hurwitz
+    ``point``; None when the family is too large for the test or ``point`` is not Hurwitz."""
+    coefficients = family.coefficients
+    nvars = len(family.names)
+    if not is_hurwitz(family.coefficients_at(point)):
+        return None
+    polys = [coefficients[0], coefficients[-1]]
+    if family.degree >= 2:
+        if _delta_size_bound(coefficients, nvars) > MAX_COEFFICIENTS:
+            return None  # known before multiplying anything out
+        delta = _delta(coefficients, nvars)
+        if delta is None:
+            return None
+        polys.append(delta)
+    signed = []
+    for poly in polys:
+        value = poly.evaluate(point)
+        if value == 0:
+            return None
+        signed.append(poly if value > 0 else MultiPoly.from_mapping(nvars, {e: -c for e, c in poly.terms}))
+    size = sum(tensor_size(p) for p in signed)
+    if size > MAX_COEFFICIENTS:
+        return None
+    return Conditions(tuple(signed), LABELS[: len(signed)], size)
+
+
+def try_box(conditions: Conditions, family: UncertainPolynomial, box: Box,
+             patches: Sequence[Patch] | None = None) -> SubBoxTest:
+    """Prove, refute at a corner, or blame a parameter, for one box (exact)."""
+    if patches is None:
+        patches = tuple(bernstein_patch(p, box.intervals) for p in conditions.polys)
+    failing = [(label, patch) for label, patch in zip(conditions.labels, patches, strict=True)
+               if not patch.positive()]
+    keep = tuple(patches) if sum(p.tensor.size for p in patches) <= KEEP_COEFFICIENTS else None
+    if not failing:
+        check_point = box.low
+        if is_hurwitz(family.coefficients_at(check_point)):
+            return SubBoxTest("proven", None, None, keep)
+        return SubBoxTest("point", check_point, None, keep, "Hurwitz check point")
+    for label, patch in failing:
+        ends, value = patch.least_corner()
+        if value <= 0:
+            point = tuple(box.high[i] if ends.get(i) else box.low[i] for i in range(len(box.low)))
+            return SubBoxTest("point", point, None, keep, label)
+    label, patch = failing[0]
+    spread = patch.spread()
+    widths = box.widths()
+    blame = max(spread, key=lambda i: (spread[i], widths[i])) if spread else None
+    if blame is None or widths[blame] == 0:
+        wide = [i for i, w in enumerate(widths) if w > 0]
+        blame = max(wide, key=lambda i: widths[i]) if wide else None
+    return SubBoxTest("inconclusive", None, blame, keep, label)
