@@ -135,7 +135,7 @@ def _normalised(tensor: np.ndarray, axes: tuple[int, ...], scale: int) -> Patch:
     """Divide tensor and scale by their common factor (keeps the integers small)."""
     g = gcd(scale, *tensor.flat)
     if g > 1:
-        tensor = tensor // g
+        tensor = np.asarray(tensor // g, dtype=object)  # (a 0-d array's quotient is a scalar)
         scale //= g
     return Patch(tensor, axes, scale)
 
@@ -204,6 +204,4 @@ def bernstein_patch(poly: MultiPoly, box: Sequence[tuple[Fraction, Fraction]]) -
         matrix = convert.dot(shift)
         tensor = np.moveaxis(np.tensordot(matrix, tensor, axes=([1], [j])), 0, j)
         scale *= shift_scale * convert_scale
-    if not axes:
-        tensor = np.array(tensor, dtype=object)
     return _normalised(tensor, axes, scale)
