@@ -151,14 +151,25 @@ def bisect_margin(test: Tester, end: Fraction, end_testable: bool, rel_tol: Frac
                 stuck = rho
                 work.undecided += 1
                 break
+    probed: Fraction | None = None  # the last upper end probed just below
+    last_was_probe = False
     while not work.spent():
         # below the least undecided point, if any: that is where a proof can still be found
         ends = [x for x in (upper, stuck) if x is not None]
         high = min(ends) if ends else None
         if high is None or (high - lower) <= rel_tol * high:
             break
-        # a short rational inside the middle half keeps the exact arithmetic small
-        mid = short_between(lower + (high - lower) / 4, high - (high - lower) / 4) or (lower + high) / 2
+        near = just_below(upper, rel_tol) if upper is not None and high == upper else None
+        # a witness slid back to its first crossing is often the worst point: one proof just
+        # below it closes the bracket (a proof at a scale covers every smaller one). Each
+        # upper end is probed once, and never twice in a row, so the bracket still halves at
+        # least every other test.
+        last_was_probe = near is not None and near > lower and probed != upper and not last_was_probe
+        if last_was_probe:
+            probed, mid = upper, near
+        else:
+            # a short rational inside the middle half keeps the exact arithmetic small
+            mid = short_between(lower + (high - lower) / 4, high - (high - lower) / 4) or (lower + high) / 2
         work.tests += 1
         verdict, w = test(mid)
         if verdict is Verdict.STABLE:

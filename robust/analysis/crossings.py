@@ -167,14 +167,19 @@ def path_margin(family: UncertainPolynomial, index: int, cap: Fraction = DEFAULT
     return first_crossing(family, scaling.vertex_paths((index,)), cap, lead=False)
 
 
-def ray_witness(family: UncertainPolynomial, target: Sequence[Fraction], limit: Fraction
-                ) -> tuple[Fraction, Witness] | None:
-    """First exact crossing on the ray nominal + t (target - nominal), 0 < t < limit, and a
-    verified witness just beyond it, strictly below ``limit``: (rho of the witness, witness)."""
+def ray_witness(family: UncertainPolynomial, target: Sequence[Fraction], limit: Fraction,
+                scaling: Scaling | None = None) -> tuple[Fraction, Witness] | None:
+    """First exact crossing on the segment base + t (target - base), 0 < t < limit, and a
+    verified witness just beyond it, strictly below ``limit``: (rho of the witness, witness).
+
+    ``base`` is where the way to ``target`` starts at rho = 0 in ``scaling`` (default: every
+    tolerance scaled, so the base is the nominal point); it must be Hurwitz.
+    """
     from .verdict import make_witness
 
-    scaling = Scaling.everything(family)
-    path = [(n, c - n) for n, c in zip(family.nominal, target, strict=True)]
+    scaling = scaling or Scaling.everything(family)
+    base = scaling.base_of(target)
+    path = [(b, c - b) for b, c in zip(base, target, strict=True)]
     found = first_crossing(family, [path], limit)
     if found is None:
         return None
@@ -183,23 +188,27 @@ def ray_witness(family: UncertainPolynomial, target: Sequence[Fraction], limit: 
                    hi_f * Fraction(101, 100)):
         if beyond is None:
             continue
-        point = tuple(n + beyond * (c - n) for n, c in zip(family.nominal, target, strict=True))
+        point = tuple(b + beyond * (c - b) for b, c in zip(base, target, strict=True))
         rho = scaling.scale_of_point(point)
         if rho >= limit:
             continue
-        w = make_witness(family, point, "point on a ray from nominal", scaling.box(rho))
+        how = "point on a ray from nominal" if base == family.nominal else "point on a segment from a stable point"
+        w = make_witness(family, point, how, scaling.box(rho))
         if w is not None:
             return rho, w
     return None
 
 
-def tightener(family: UncertainPolynomial, limit: Fraction) -> Callable[[Witness], tuple[Fraction, Witness]]:
-    """Slide a witness towards nominal along its ray, to the first crossing."""
-    scaling = Scaling.everything(family)
+def tightener(family: UncertainPolynomial, limit: Fraction, scaling: Scaling | None = None
+              ) -> Callable[[Witness], tuple[Fraction, Witness]]:
+    """Slide a witness back towards where its way starts (see :func:`ray_witness`), to the
+    first crossing."""
+    scaling = scaling or Scaling.everything(family)
 
     def tighten(witness: Witness) -> tuple[Fraction, Witness]:
         rho = scaling.scale_of_point(witness.point)
-        found = ray_witness(family, witness.point, Fraction(1) if rho == 0 else min(Fraction(1), limit / rho))
+        found = ray_witness(family, witness.point, Fraction(1) if rho == 0 else min(Fraction(1), limit / rho),
+                            scaling)
         if found is not None and found[0] <= rho:
             return found
         return rho, witness
@@ -207,25 +216,34 @@ def tightener(family: UncertainPolynomial, limit: Fraction) -> Callable[[Witness
     return tighten
 
 
-def ray_upper_bound(family: UncertainPolynomial, limit: Fraction, rays: int = 64, seed: int = 0
-                    ) -> tuple[Fraction, Witness] | None:
-    """An upper bound on rho* below ``limit`` from straight rays nominal -> corner:
-    (rho, witness) or None.
+def ray_upper_bound(family: UncertainPolynomial, limit: Fraction, rays: int = 64, seed: int = 0,
+                    scaling: Scaling | None = None) -> tuple[Fraction, Witness] | None:
+    """An upper bound on the margin below ``limit`` from straight segments: (rho, witness) or
+    None.
 
-    Floats pick the rays that leave the stable region first (a seeded choice, so the same
-    rays every run); their first crossing is then found exactly and a short rational just
-    beyond it is verified.
+    For every tolerance scaled together (the default ``scaling``) the segments are the rays
+    nominal -> corner; when only some parameters are scaled with the others over their full
+    range, each segment starts at a corner of the others' box with the scaled ones at
+    nominal (a stable point, when the box at scale 0 is stable) and moves the scaled ones
+    towards a corner of theirs. Floats pick the segments that leave the stable region first
+    (a seeded choice, so the same segments every run); their first crossing is then found
+    exactly and a short rational just beyond it is verified.
     """
     import numpy as np
 
     from .search import batch_worst_angle
 
-    k = len(family.names)
-    nominal = np.array([to_float(x) for x in family.nominal])
-    up = np.array([to_float(h - n) for h, n in zip(family.box.high, family.nominal, strict=True)])
-    down = np.array([to_float(n - lo) for lo, n in zip(family.box.low, family.nominal, strict=True)])
-    free = [i for i in range(k) if up[i] > 0 or down[i] > 0]
-    if not free:
+    scaling = scaling or Scaling.everything(family)
+    fam = family
+    k = len(fam.names)
+    nominal = np.array([to_float(x) for x in fam.nominal])
+    up = np.array([to_float(h - n) for h, n in zip(fam.box.high, fam.nominal, strict=True)])
+    down = np.array([to_float(n - lo) for lo, n in zip(fam.box.low, fam.nominal, strict=True)])
+    moving = [i for i in scaling.scaled if up[i] > 0 or down[i] > 0]
+    spread = [i for i in range(k) if i not in scaling.scaled and scaling.others_full
+              and (up[i] > 0 or down[i] > 0)]
+    free = moving + spread
+    if not moving:
         return None
     rng = np.random.default_rng(seed)
     if 2 ** len(free) <= rays:
@@ -234,28 +252,44 @@ def ray_upper_bound(family: UncertainPolynomial, limit: Fraction, rays: int = 64
     else:
         signs = rng.choice([-1, 1], size=(rays, len(free)))
     directions = np.zeros((len(signs), k))
+    bases = np.tile(nominal, (len(signs), 1))
     for j, i in enumerate(free):
-        directions[:, i] = np.where(signs[:, j] > 0, up[i], -down[i])
+        step = np.where(signs[:, j] > 0, up[i], -down[i])
+        if i in moving:
+            directions[:, i] = step
+        else:
+            bases[:, i] += step
     top = to_float(limit)
-    grid = np.concatenate([np.linspace(0, min(1.0, top), 41)[1:],
-                           np.geomspace(1.0, top, 60)[1:] if top > 1 else np.array([])])
+    # points crowd towards the top too: a crossing just before a limit is a narrow window
+    grid = np.unique(np.concatenate([np.linspace(0, min(1.0, top), 41)[1:],
+                                     np.geomspace(1.0, top, 60)[1:] if top > 1 else np.array([]),
+                                     top * (1 - np.geomspace(0.1, 1e-6, 16))]))
+    grid = grid[grid > 0]
     first = np.full(len(directions), np.inf)
+    before = np.zeros(len(directions))  # the last grid point seen stable on each segment
     with np.errstate(all="ignore"):
         for t in grid:
-            points = nominal + t * directions
-            bad = (batch_worst_angle(family.coefficients_float(points)) > 0) & ~np.isfinite(first)
+            points = bases + t * directions
+            bad = (batch_worst_angle(fam.coefficients_float(points)) > 0) & ~np.isfinite(first)
             first[bad] = t
+            before[~np.isfinite(first)] = t
+        # refine every crossing by float bisection, so that segments crossing between the
+        # same two grid points are told apart before the few exact checks
+        hit = np.isfinite(first)
+        low, high = before[hit], first[hit]
+        for _ in range(30):
+            mid = (low + high) / 2
+            bad = batch_worst_angle(fam.coefficients_float(bases[hit] + mid[:, None] * directions[hit])) > 0
+            high = np.where(bad, mid, high)
+            low = np.where(bad, low, mid)
+        first[hit] = high
     order = [int(i) for i in np.argsort(first, kind="stable") if np.isfinite(first[i])][:3]
     best = None
     for idx in order:
-        corner = []
-        for i in range(k):
-            if i in free:
-                j = free.index(i)
-                corner.append(family.box.high[i] if signs[idx][j] > 0 else family.box.low[i])
-            else:
-                corner.append(family.nominal[i])
-        found = ray_witness(family, corner, limit)
+        target = list(fam.nominal)
+        for j, i in enumerate(free):
+            target[i] = fam.box.high[i] if signs[idx][j] > 0 else fam.box.low[i]
+        found = ray_witness(fam, target, limit, scaling)
         if found is not None and (best is None or found[0] < best[0]):
             best = found
     return best

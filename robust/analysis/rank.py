@@ -27,7 +27,7 @@ from ..exact.numbers import json_float, short_between
 from ..model.family import UncertainPolynomial
 from ..model.graph import build_graph
 from .bracket import Bracket, Work, bisect_margin, float_down, just_below, scaled_tester
-from .crossings import DEFAULT_CAP, RootBound, path_margin
+from .crossings import DEFAULT_CAP, RootBound, path_margin, ray_upper_bound, tightener
 from .limits import ScaleEnd, end_of_scaling
 from .margin import crossing_end
 from .outcomes import LimitKind, Verdict
@@ -152,7 +152,14 @@ def _given_others(family: UncertainPolynomial, i: int, robust_ok: bool | None, c
         return (Bracket(Fraction(0), None, note="undecided with this parameter at nominal"),
                 replace(end, proven=False))
     start = Fraction(1) if robust_ok is not False else Fraction(1, 2)
-    bracket = bisect_margin(test, end.scale, end.kind is LimitKind.CAP, tol, work, start=start)
+    # an exact crossing on a segment from a stable point (the others at a corner) gives a
+    # witnessed upper end at once; bisection then closes the bracket below it
+    ray = ray_upper_bound(family, end.scale, scaling=scaling)
+    upper, witness = ray if ray is not None else (None, None)
+    lower = Fraction(1) if robust_ok and upper is not None and upper > 1 else Fraction(0)
+    bracket = bisect_margin(test, end.scale, end.kind is LimitKind.CAP, tol, work, start=start,
+                            lower=lower, upper=upper, witness=witness,
+                            tighten=tightener(family, end.scale, scaling))
     if bracket.upper is not None:
         return bracket, crossing_end(family, bracket)
     top = end.scale if end.kind is LimitKind.CAP else just_below(end.scale, tol)
@@ -161,7 +168,7 @@ def _given_others(family: UncertainPolynomial, i: int, robust_ok: bool | None, c
             replace(end, proven=proven))
 
 
-def rank(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float = 1e-3,
+def rank(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float = 1e-6,
          max_seconds: float = 600.0, max_boxes: int = 500, max_tests: int = 16) -> RankResult:
     """Rank the parameters by how little tolerance growth they stand (most critical first).
 

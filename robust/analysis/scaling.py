@@ -107,12 +107,19 @@ class Scaling:
         return None if best is None else (best, tuple(names), tuple(values))
 
     def scale_of_point(self, point: Sequence[Fraction]) -> Fraction:
-        """The least rho with ``point`` inside box(rho) (every-parameter scaling)."""
+        """The least rho whose box(rho) holds ``point``'s scaled coordinates (the other
+        coordinates are not looked at)."""
         fam = self.family
         rho = Fraction(0)
-        for x, n, lo, hi in zip(point, fam.nominal, fam.box.low, fam.box.high, strict=True):
+        for i in self.scaled:
+            x, n, lo, hi = point[i], fam.nominal[i], fam.box.low[i], fam.box.high[i]
             if x > n and hi > n:
                 rho = max(rho, (x - n) / (hi - n))
             elif x < n and lo < n:
                 rho = max(rho, (n - x) / (n - lo))
         return rho
+
+    def base_of(self, point: Sequence[Fraction]) -> tuple[Fraction, ...]:
+        """Where the way to ``point`` starts at rho = 0: nominal on the scaled parameters,
+        ``point``'s own values on the others."""
+        return tuple(self.family.nominal[i] if i in self.scaled else x for i, x in enumerate(point))
