@@ -25,7 +25,10 @@ ROOT = Path(__file__).resolve().parent.parent
 TUTORIAL = ROOT / "docs" / "tutorial.md"
 BLOCK = re.compile(r"^```console\n(.*?)^```\n", re.MULTILINE | re.DOTALL)
 #: Files the tutorial asks the reader to make: name -> (made from, text replaced, by).
-MADE = {"servo_light.toml": ("cases/servo_pid.toml", "range = [2.0e-5, 6.0e-5]", "range = [5.0e-6, 6.0e-5]")}
+MADE = {
+    "servo_light.toml": ("cases/servo_pid.toml", "range = [2.0e-5, 6.0e-5]", "range = [5.0e-6, 6.0e-5]"),
+    "mount_payload.toml": ("cases/isolation_mount.toml", 'nominal = 3\ntolerance = "10%"', "range = [0.02, 6]"),
+}
 #: For ``--json`` the tutorial shows these keys of the document only.
 JSON_KEYS = ("case", "verdict", "method", "witness")
 WITNESS_KEYS = ("parameters", "coefficients")
