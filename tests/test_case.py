@@ -83,6 +83,17 @@ def _maglev():
     return p, nominal
 
 
+def _mount():
+    """det(M s^2 + C s + K) of the header's equations of motion, by sympy's determinant."""
+    m1, m2, k1, k2, c1, c2 = sp.symbols("m1 m2 k1 k2 c1 c2")
+    mass = sp.Matrix([[m1, 0], [0, m2]])
+    damping = sp.Matrix([[c1 + c2, -c2], [-c2, c2]])
+    stiffness = sp.Matrix([[k1 + k2, -k2], [-k2, k2]])
+    p = (mass * S**2 + damping * S + stiffness).det()
+    nominal = {m1: 12, m2: 3, k1: 40000, k2: 18000, c1: 6, c2: 2}
+    return p, nominal
+
+
 def _servo():
     Kt, Ra, La, J, b, Ka = sp.symbols("Kt Ra La J b Ka")
     p = (S * ((J * S + b) * (La * S + Ra) + Kt**2) * S * (Q("0.003") * S + 1)
@@ -105,13 +116,14 @@ EXPECTED = {
     "buck_voltage_loop": ("stable", _buck),
     "interval_measured": ("stable", _interval_measured),
     "interval_unstable": ("unstable", _interval_unstable),
+    "isolation_mount": ("stable", _mount),
     "maglev_lead": ("unstable", _maglev),
     "servo_pid": ("stable", _servo),
     "thermal_pi_affine": ("stable", _thermal),
 }
 # Cases written as one expression or coefficient list with integer constants: the family's
 # coefficients are the written ones exactly (no constant factor cleared).
-UNSCALED = {"active_filter", "interval_measured", "interval_unstable", "maglev_lead"}
+UNSCALED = {"active_filter", "interval_measured", "interval_unstable", "isolation_mount", "maglev_lead"}
 
 
 def _sympy_coefficients(p, values):
@@ -165,6 +177,7 @@ def test_nominal_coefficients_equal_an_independent_sympy_expansion(path):
     ("active_filter", "multilinear"), ("buck_voltage_loop", "multilinear"),
     ("interval_measured", "independent"), ("interval_unstable", "independent"),
     ("maglev_lead", "multilinear"), ("servo_pid", "polynomial"), ("thermal_pi_affine", "affine"),
+    ("isolation_mount", "multilinear"),
 ])
 def test_case_dependence_class_is_the_one_the_header_derives(stem, kind):
     """Each case's dependence class is the one its header comment derives."""

@@ -23,12 +23,13 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
+from functools import lru_cache
 
 from ..errors import InputError
 from ..exact import sparse
 from ..exact.bernstein import Patch, bernstein_patch, tensor_size
 from ..exact.hurwitz import hurwitz_determinant_terms
-from ..exact.polynomials import MultiPoly
+from ..exact.polynomials import MultiPoly, as_intervals
 from ..exact.routh import is_hurwitz
 from ..model.family import Box, UncertainPolynomial
 
@@ -37,6 +38,9 @@ __all__ = ["MAX_COEFFICIENTS", "Conditions", "SubBoxTest", "hurwitz_conditions",
 #: Above this many Bernstein coefficients per box (all conditions together) the test costs
 #: more than the interval overbound's subdivision saves; the engine keeps Kharitonov then.
 MAX_COEFFICIENTS = 60_000
+#: Delta_(n-1) is multiplied out when its tensor size bound (before the monotone parameters
+#: are fixed) is at most this.
+MAX_EXPANDED = 50 * MAX_COEFFICIENTS
 #: Term products allowed when multiplying out Delta_(n-1) in the parameters.
 MAX_PRODUCTS = 2_000_000
 #: Parent patches are handed to the halves (no re-expansion) when this small.
@@ -48,11 +52,18 @@ LABELS = ("leading coefficient", "constant coefficient", "Hurwitz determinant De
 @dataclass(frozen=True, slots=True)
 class Conditions:
     """Polynomials in the parameters whose positivity over a box with one Hurwitz point
-    proves the box (sign-normalised at a Hurwitz point)."""
+    proves the box (sign-normalised at a Hurwitz point).
+
+    A condition that is monotone in a parameter over the box it was made for is positive
+    there as soon as it is positive with that parameter at its least favourable end, so
+    that parameter is fixed there (``fixed``: per condition, parameter -> value) and costs
+    no Bernstein axis; positivity at the fixed end is a lower bound on every sub-box too.
+    """
 
     polys: tuple[MultiPoly, ...]
     labels: tuple[str, ...]
     size: int
+    fixed: tuple[dict[int, Fraction], ...] = ()
 
 
 @dataclass(frozen=True, slots=True)
@@ -80,8 +91,10 @@ def _to_sparse(poly: MultiPoly) -> dict:
     return out
 
 
-def _delta(coefficients: Sequence[MultiPoly], nvars: int) -> MultiPoly | None:
-    """Delta_(n-1) of the family as a polynomial in the parameters (None: too large)."""
+@lru_cache(maxsize=16)
+def _delta(coefficients: tuple[MultiPoly, ...], nvars: int) -> MultiPoly | None:
+    """Delta_(n-1) of the family as a polynomial in the parameters (None: too large).
+    Cached: the margin searches ask for the same family over many boxes."""
     n = len(coefficients) - 1
     terms = hurwitz_determinant_terms(n, n - 1)
     work = sparse.Work(MAX_PRODUCTS)
@@ -118,31 +131,39 @@ def _delta_size_bound(coefficients: Sequence[MultiPoly], nvars: int) -> int:
     return size
 
 
-def hurwitz_conditions(family: UncertainPolynomial, point: Sequence[Fraction]) -> Conditions | None:
+def hurwitz_conditions(family: UncertainPolynomial, point: Sequence[Fraction],
+                       box: Box | None = None) -> Conditions | None:
     """a_n, a_0 and Delta_(n-1) in the parameters, each signed to be positive at the Hurwitz
-    ``point``; None when the family is too large for the test or ``point`` is not Hurwitz."""
+    ``point`` and reduced by its monotone parameters over ``box`` (default: the family's);
+    None when the family is too large for the test or ``point`` is not Hurwitz."""
     coefficients = family.coefficients
     nvars = len(family.names)
+    box = box or family.box
     if not is_hurwitz(family.coefficients_at(point)):
         return None
     polys = [coefficients[0], coefficients[-1]]
     if family.degree >= 2:
-        if _delta_size_bound(coefficients, nvars) > MAX_COEFFICIENTS:
+        if _delta_size_bound(coefficients, nvars) > MAX_EXPANDED:
             return None  # known before multiplying anything out
-        delta = _delta(coefficients, nvars)
+        delta = _delta(tuple(coefficients), nvars)
         if delta is None:
             return None
         polys.append(delta)
-    signed = []
+    intervals = as_intervals(box.intervals)
+    signed, fixed = [], []
     for poly in polys:
         value = poly.evaluate(point)
         if value == 0:
             return None
-        signed.append(poly if value > 0 else MultiPoly.from_mapping(nvars, {e: -c for e, c in poly.terms}))
+        poly = poly if value > 0 else MultiPoly.from_mapping(nvars, {e: -c for e, c in poly.terms})
+        ends = {i: box.low[i] if sign > 0 else box.high[i]
+                for i, sign in enumerate(poly.derivative_signs(intervals)) if sign}
+        signed.append(poly.substitute(ends) if ends else poly)
+        fixed.append(ends)
     size = sum(tensor_size(p) for p in signed)
     if size > MAX_COEFFICIENTS:
         return None
-    return Conditions(tuple(signed), LABELS[: len(signed)], size)
+    return Conditions(tuple(signed), LABELS[: len(signed)], size, tuple(fixed))
 
 
 def try_box(conditions: Conditions, family: UncertainPolynomial, box: Box,
@@ -161,7 +182,9 @@ def try_box(conditions: Conditions, family: UncertainPolynomial, box: Box,
     for label, patch in failing:
         ends, value = patch.least_corner()
         if value <= 0:
-            point = tuple(box.high[i] if ends.get(i) else box.low[i] for i in range(len(box.low)))
+            fixed = conditions.fixed[conditions.labels.index(label)] if conditions.fixed else {}
+            point = tuple(fixed[i] if i in fixed else box.high[i] if ends.get(i) else box.low[i]
+                          for i in range(len(box.low)))
             return SubBoxTest("point", point, None, keep, label)
     label, patch = failing[0]
     spread = patch.spread()

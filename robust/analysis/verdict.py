@@ -377,7 +377,7 @@ def decide(
     if w is not None:
         method = "kharitonov-vertex" if kh.reason == "vertex" else "coefficient-sign"
         return result("unstable", method, w, reason=f"{w.found_by}: not Hurwitz")
-    conditions = (hurwitz_conditions(family, start_point)
+    conditions = (hurwitz_conditions(family, start_point, box)
                   if sub_box_test == "auto" and family.structure != "independent" else None)
     if conditions is not None:
         budget.boxes += 1
@@ -417,7 +417,8 @@ def decide(
             if note:
                 return result("undecided", "edges", unresolved=Fraction(1), largest=box,
                               edges=count, reason=note)
-    return _subdivide(family, box, budget, progress, result, seed, conditions)
+    return _subdivide(family, box, budget, progress, result, seed, conditions,
+                      local_search=search or conditions is None)
 
 
 def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
@@ -460,7 +461,7 @@ def worst_root_angle_many(family: UncertainPolynomial, points: Sequence[Sequence
 
 
 def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, result, seed: int,
-               conditions: Conditions | None = None):
+               conditions: Conditions | None = None, local_search: bool = True):
     """Branch and bound over sub-boxes, largest first. Each sub-box is proven by the
     Bernstein test of the Hurwitz conditions when the family has them (:mod:`.subbox`),
     else by its own overbound + Kharitonov; what resists is split along the parameter the
@@ -499,7 +500,7 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
                 w = make_witness(family, center, "centre of a sub-box", box)
             if w is None and kh is not None and kh.reason in ("sign", "degree", "vertex"):
                 w = _realise_failure(family, sub, kh)
-            if w is None and depth >= 4 and depth % 4 == 0 and depth not in searched_depths:
+            if w is None and local_search and depth >= 4 and depth % 4 == 0 and depth not in searched_depths:
                 searched_depths.add(depth)
                 found = search_witness(family, sub, seed=seed + depth, samples=64, local=2,
                                        deadline=budget.deadline)
