@@ -40,7 +40,7 @@ __all__ = ["MAX_COEFFICIENTS", "Conditions", "SubBoxTest", "hurwitz_conditions",
 MAX_COEFFICIENTS = 60_000
 #: Delta_(n-1) is multiplied out when its tensor size bound (before the monotone parameters
 #: are fixed) is at most this.
-MAX_EXPANDED = 50 * MAX_COEFFICIENTS
+MAX_EXPANDED = 10**7
 #: Term products allowed when multiplying out Delta_(n-1) in the parameters.
 MAX_PRODUCTS = 2_000_000
 #: Parent patches are handed to the halves (no re-expansion) when this small.

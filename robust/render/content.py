@@ -47,17 +47,17 @@ CAUTIONS = (
 )
 
 
+_CORRELATED = ("the interval overbound of the coefficients is sound but may be conservative; the "
+               "Bernstein test of the Hurwitz conditions works on the parameters themselves and keeps "
+               "that correlation (box subdivision refines both)")
 _KIND_TEXT = {
     "independent": "each parameter enters one coefficient only, so the interval "
                    "overbound of the coefficients is exact and Kharitonov's theorem decides the family",
     "affine": "every coefficient is affine in the parameters (a polytope of polynomials; "
               "the edge theorem can decide it exactly)",
-    "multilinear": "each coefficient is affine in each parameter separately; the "
-                   "interval overbound is sound but may be conservative (box subdivision refines it)",
-    "polynomial": "parameters enter with powers; the interval overbound is sound but may be "
-                  "conservative (box subdivision refines it)",
-    "rational": "a denominator that keeps one sign over the box was cleared; the interval "
-                "overbound is sound but may be conservative (box subdivision refines it)",
+    "multilinear": "each coefficient is affine in each parameter separately; " + _CORRELATED,
+    "polynomial": "parameters enter with powers; " + _CORRELATED,
+    "rational": "a denominator that keeps one sign over the box was cleared; " + _CORRELATED,
 }
 
 def _badge(outcome: Outcome, key: str = "") -> Badge:
