@@ -103,12 +103,14 @@ def table_a(max_boxes: int) -> None:
               f"{'s':>7} | {'ref verdict':11} {'ref boxes':>9} {'ref s':>7} | {'boxes x':>8} {'time x':>7}")
     print(header)
     print("-" * len(header))
-    for text in (CHAIN, (ROOT / "cases" / "isolation_mount.toml").read_text(), THIN, POLY10_DEG8, POLY10_DEG4):
+    mount = (ROOT / "cases" / "isolation_mount.toml").read_text()
+    for text in (CHAIN, mount, THIN, POLY10_DEG8, POLY10_DEG4):
         case = parse_case(text, "<bench>")
         (ours, s_ours), (ref, s_ref) = _both(check, case, max_boxes=max_boxes)
         ratio_boxes = ref.boxes / max(ours.boxes, 1)
         ratio_time = s_ref / s_ours if s_ours else float("inf")
-        print(f"{case.title[:34]:34} {len(case.family.names):3d} {case.family.degree:3d} {case.family.kind:11} "
+        family = case.family
+        print(f"{case.title[:34]:34} {len(family.names):3d} {family.degree:3d} {family.kind:11} "
               f"{_test_used(case):9} {ours.verdict.value:9} {ours.boxes:6d} {s_ours:7.3f} | "
               f"{ref.verdict.value:11} {ref.boxes:9d} {s_ref:7.3f} | {ratio_boxes:8.1f} {ratio_time:7.1f}")
     print("('boxes' counts sub-boxes tested; 0 means the whole-box overbound decided; an undecided "

@@ -93,7 +93,8 @@ def test_enclosure_error_shrinks_quadratically():
         for j in range(2**k):
             a = j * h
             patch = bernstein_patch(poly, [(a, a + h)])
-            true_min = 0 if a <= Fraction(1, 3) <= a + h else min(poly.evaluate((a,)), poly.evaluate((a + h,)))
+            ends = min(poly.evaluate((a,)), poly.evaluate((a + h,)))
+            true_min = 0 if a <= Fraction(1, 3) <= a + h else ends
             worst = max(worst, true_min - patch.low())
         gaps.append(worst)
     ratios = [float(gaps[i] / gaps[i + 1]) for i in range(len(gaps) - 1)]

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import random
 from fractions import Fraction
+from pathlib import Path
 
 import mpmath
 import pytest
@@ -28,10 +29,11 @@ from strategies import case_toml, small_families
 
 from robust.analysis.decay import decay_rate
 from robust.analysis.margin import margin
+from robust.analysis.outcomes import LimitKind
 from robust.analysis.rank import rank
 from robust.analysis.requirements import check_requirements
 from robust.analysis.verdict import decide
-from robust.model.case import parse_case
+from robust.model.case import load_case, parse_case
 from robust.model.family import shifted_family
 
 # -- building cases and checking answers independently ------------------------------------
@@ -388,3 +390,22 @@ def test_margin_is_reproducible_between_runs():
     random.seed(54321)
     second = margin(parse_case(_case_text(params, coefficients=formulas)), with_decay=False)
     assert (first.margin.lower, first.margin.upper) == (second.margin.lower, second.margin.upper)
+
+
+SHIPPED = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
+
+
+@pytest.mark.parametrize("path", SHIPPED, ids=lambda p: p.stem)
+def test_every_shipped_margin_is_tight_or_ends_at_a_limit(path):
+    """rho* of every shipped case to 1e-6 relative, or a margin that ends at a physical limit;
+    the witness at the upper end has a root with Re >= 0 by mpmath (an independent root
+    finder)."""
+    case = load_case(path)
+    result = margin(case, with_decay=False)
+    bracket = result.margin
+    if result.limit.kind is LimitKind.PHYSICAL_LIMIT:
+        assert bracket.upper == result.limit.scale and bracket.relative_width <= 1e-6
+        return
+    assert bracket.relative_width is not None and bracket.relative_width <= 1e-6
+    if bracket.witness is not None:
+        assert _max_real_part(bracket.witness.coefficients) >= -mpmath.mpf(10) ** -30

@@ -250,3 +250,19 @@ def test_fixed_parameter_has_no_tolerance_to_rank():
     # b alone: 3 (4 - 0.5 r) = 5 -> r = 14/3 (degree-3 condition, by hand)
     b = _by_name(result)["b"].margin_alone
     assert b.lower <= Fraction(14, 3) <= b.upper
+
+
+def test_margin_given_others_of_a_correlated_family_matches_the_hand_derivation():
+    """s^3 + (2 + x) s^2 + (2 + y) s + (3 + x + y + xy), x and y in [-1/4, 1/4]:
+    a2*a1 - a3*a0 = 1 + x + y (by hand), and a0, a2 stay positive for |x| <= 1, |y| <= 1/4.
+    With y over its full range, x's tolerance scaled by r keeps the family stable exactly
+    while 1 - r/4 - 1/4 > 0: r* = 3 for x, and likewise for y."""
+    params = {n: {"nominal": "0", "range": ["-0.25", "0.25"]} for n in ("x", "y")}
+    case = parse_case(_case_text(params, coefficients=["1", "2 + x", "2 + y", "3 + x + y + x*y"]))
+    for p in rank(case).parameters:
+        bracket = p.margin_given_others
+        assert bracket.lower <= 3 <= bracket.upper, (p.name, bracket)
+        assert bracket.relative_width <= 1e-6
+        # the witness at the upper end: 1 + x + y <= 0 there (the closed form above)
+        point = bracket.witness.parameters
+        assert 1 + point["x"] + point["y"] <= 0

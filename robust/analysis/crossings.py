@@ -192,7 +192,8 @@ def ray_witness(family: UncertainPolynomial, target: Sequence[Fraction], limit: 
         rho = scaling.scale_of_point(point)
         if rho >= limit:
             continue
-        how = "point on a ray from nominal" if base == family.nominal else "point on a segment from a stable point"
+        how = ("point on a ray from nominal" if base == family.nominal
+               else "point on a segment from a stable point")
         w = make_witness(family, point, how, scaling.box(rho))
         if w is not None:
             return rho, w

@@ -499,7 +499,8 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
             center = sub.center
             w = None
             if pointed is not None:
-                w = make_witness(family, pointed, "corner of a sub-box where a stability condition fails", box)
+                w = make_witness(family, pointed, "corner of a sub-box where a stability condition fails",
+                                 box)
             if w is None and worst_root_angle_many(family, [center])[0] > -1e-6:
                 w = make_witness(family, center, "centre of a sub-box", box)
             if w is None and kh is not None and kh.reason in ("sign", "degree", "vertex"):
