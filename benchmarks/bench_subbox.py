@@ -14,7 +14,7 @@ which is what every sub-box used before the Bernstein test existed.
     10-parameter degree-4 loop (a DC motor, a PI controller and a sensor filter).
 (b) rho* and the decay rate on every shipped case: relative bracket widths (asked: 1e-6,
     1e-9 for interval families) and seconds, ours and the reference.
-(c) Growth with the number of parameters (4 to 24) of a multilinear cubic whose three
+(c) Growth with the number of parameters (4 to 32) of a multilinear cubic whose three
     poles and gain are each a product of a quarter of the parameters.
 """
 
@@ -162,7 +162,7 @@ def main() -> None:
     table_a(budget)
     if not args.quick:
         table_b()
-    table_c((4, 8, 12, 16, 20, 24), budget)
+    table_c((4, 8, 12, 16, 24, 32), budget)
 
 
 if __name__ == "__main__":

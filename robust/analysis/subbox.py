@@ -38,9 +38,6 @@ __all__ = ["MAX_COEFFICIENTS", "Conditions", "SubBoxTest", "hurwitz_conditions",
 #: Above this many Bernstein coefficients per box (all conditions together) the test costs
 #: more than the interval overbound's subdivision saves; the engine keeps Kharitonov then.
 MAX_COEFFICIENTS = 60_000
-#: Delta_(n-1) is multiplied out when its tensor size bound (before the monotone parameters
-#: are fixed) is at most this.
-MAX_EXPANDED = 10**7
 #: Term products allowed when multiplying out Delta_(n-1) in the parameters.
 MAX_PRODUCTS = 2_000_000
 #: Parent patches are handed to the halves (no re-expansion) when this small.
@@ -120,15 +117,18 @@ def _delta(coefficients: tuple[MultiPoly, ...], nvars: int) -> MultiPoly | None:
     return sparse.to_multipoly(total, nvars)
 
 
-def _delta_size_bound(coefficients: Sequence[MultiPoly], nvars: int) -> int:
-    """An upper bound on Delta_(n-1)'s Bernstein tensor size, from the degrees alone."""
+def _delta_products(coefficients: Sequence[MultiPoly]) -> int:
+    """An upper bound on the term products of multiplying Delta_(n-1) out, from the number
+    of terms of each coefficient alone (known before anything is multiplied)."""
     n = len(coefficients) - 1
-    degrees = [[c.degree_in(i) for i in range(nvars)] for c in coefficients]
-    size = 1
-    for i in range(nvars):
-        size *= 1 + max((sum(e * degrees[k][i] for k, e in enumerate(exps) if e)
-                         for exps, _ in hurwitz_determinant_terms(n, n - 1)), default=0)
-    return size
+    sizes = [len(c.terms) for c in coefficients]
+    total = 0
+    for exps, _ in hurwitz_determinant_terms(n, n - 1):
+        count = 1
+        for k, e in enumerate(exps):
+            count *= sizes[k] ** e
+        total += count
+    return total
 
 
 def hurwitz_conditions(family: UncertainPolynomial, point: Sequence[Fraction],
@@ -143,7 +143,7 @@ def hurwitz_conditions(family: UncertainPolynomial, point: Sequence[Fraction],
         return None
     polys = [coefficients[0], coefficients[-1]]
     if family.degree >= 2:
-        if _delta_size_bound(coefficients, nvars) > MAX_EXPANDED:
+        if _delta_products(coefficients) > MAX_PRODUCTS:
             return None  # known before multiplying anything out
         delta = _delta(tuple(coefficients), nvars)
         if delta is None:
