@@ -141,3 +141,55 @@ def test_the_sub_box_test_blames_a_parameter_and_its_halves_prove():
     test = try_box(hurwitz_conditions(wide, wide.nominal), wide, wide.box)
     assert test.status == "point"  # the corner (-0.55, -0.55): 1 + x + y = -0.1
     assert not is_hurwitz(wide.coefficients_at(test.point))
+
+
+@st.composite
+def quartic_families(draw):
+    """Degree 4, parameters u and v of nominal 1: the coefficients of a product of stable
+    factors plus integer multiples of (u - 1), (v - 1), (u - 1)(v - 1) and (u - 1)^2, so the
+    dependence is polynomial and Delta_3 has interior extrema."""
+    base = [Fraction(1)]
+    for _ in range(4):
+        r = draw(st.integers(1, 3))
+        base = [a + r * b for a, b in zip([*base, Fraction(0)], [Fraction(0), *base], strict=True)]
+    formulas = []
+    for c in base:
+        terms = [str(c)]
+        for monomial in ("(u - 1)", "(v - 1)", "(u - 1)*(v - 1)", "(u - 1)^2"):
+            d = draw(st.integers(-3, 3))
+            if d:
+                terms.append(f"{d}*{monomial}")
+        formulas.append(" + ".join(terms))
+    width = draw(st.sampled_from(["0.2", "0.5", "0.8"]))
+    params = {n: {"nominal": "1", "tolerance": width} for n in ("u", "v")}
+    return parse_case(case_toml(params, formulas, title="quartic family"), "<quartic>"), formulas
+
+
+def _quartic_hurwitz(a4, a3, a2, a1, a0) -> bool:
+    """Degree-4 Hurwitz condition after making a4 > 0: all a_i > 0 and
+    a3 a2 a1 > a4 a1^2 + a3^2 a0 (Gantmacher 1959, ch. XV, from memory)."""
+    if a4 < 0:
+        a4, a3, a2, a1, a0 = -a4, -a3, -a2, -a1, -a0
+    return (a4 > 0 and a3 > 0 and a2 > 0 and a1 > 0 and a0 > 0
+            and a3 * a2 * a1 > a4 * a1 * a1 + a3 * a3 * a0)
+
+
+@settings(max_examples=60, deadline=None)
+@given(quartic_families())
+def test_quartic_verdicts_agree_with_the_closed_form(data):
+    """Whatever the engine decides on a polynomial family of degree 4 agrees with the degree-4
+    condition: 'stable' on a dense rational grid of the box (and the box's corners), a witness
+    by the condition itself and by mpmath's roots."""
+    case, _ = data
+    family = case.family
+    result = check(case, max_boxes=3000)
+    if result.verdict == "stable":
+        (u0, u1), (v0, v1) = family.box.intervals
+        for i, j in itertools.product(range(21), repeat=2):
+            point = (u0 + (u1 - u0) * Fraction(i, 20), v0 + (v1 - v0) * Fraction(j, 20))
+            assert _quartic_hurwitz(*family.coefficients_at(point)), point
+    elif result.verdict == "unstable":
+        coefficients = family.coefficients_at(result.witness.point)
+        assert family.box.contains(result.witness.point)
+        assert not _quartic_hurwitz(*coefficients)
+        assert coefficients[0] == 0 or not _mpmath_stable(coefficients)
