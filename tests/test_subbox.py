@@ -193,3 +193,39 @@ def test_quartic_verdicts_agree_with_the_closed_form(data):
         assert family.box.contains(result.witness.point)
         assert not _quartic_hurwitz(*coefficients)
         assert coefficients[0] == 0 or not _mpmath_stable(coefficients)
+
+
+def test_high_degree_families_keep_the_overbound():
+    """Above MAX_DEGREE the generic Hurwitz determinant is too large to expand (it has
+    hundreds of thousands of terms at degree 16), so the conditions are not built and the
+    engine keeps the overbound; a product of 16 stable factors with one shared gain (our own)
+    is still decided."""
+    from robust.analysis.subbox import MAX_DEGREE
+
+    params = {"g": {"nominal": "1", "tolerance": "1%"}}
+    case = parse_case(case_toml(params, expression="(s + 1)^16 + g*(s + 1)^15 - (s + 1)^15",
+                                title="degree 16"), "<deg16>")
+    assert case.family.degree == 16 > MAX_DEGREE
+    assert hurwitz_conditions(case.family, case.family.nominal) is None
+    result = check(case, max_boxes=200)
+    assert result.verdict == "stable"
+    # (s + 1)^15 (s + g): every root at -1 or -g (closed form)
+
+
+def test_subdivision_with_the_bernstein_test_does_not_depend_on_the_memory_cap(monkeypatch):
+    """A chain whose masses range over a factor of 200 needs sub-boxes; the halves' patches by
+    de Casteljau (kept in memory) and by a fresh expansion (cap 0) are the same numbers, so
+    the verdict and the box count agree. Stable, by the energy argument (every part positive)."""
+    import robust.analysis.verdict as engine
+
+    values = {"m1": Fraction(2), "m2": Fraction(1, 2), "k1": Fraction(8000), "k2": Fraction(2000),
+              "c1": Fraction(1, 20), "c2": Fraction(1, 50)}
+    params = {name: {"nominal": str(v), "tolerance": "10%"} for name, v in values.items()}
+    params["m1"] = {"range": ["0.02", "4"]}
+    params["m2"] = {"range": ["0.02", "1"]}
+    case = parse_case(case_toml(params, expression=CHAIN, title="wide chain"), "<wide chain>")
+    kept = decide(case.family, search=False)
+    monkeypatch.setattr(engine, "MAX_STORED", 0)
+    fresh = decide(case.family, search=False)
+    assert kept.verdict == fresh.verdict == "stable"
+    assert kept.method == "subdivision" and kept.boxes == fresh.boxes > 1

@@ -54,6 +54,9 @@ DEFAULT_MAX_BOXES = 20_000
 #: The sub-box test decide() uses when not told (see its ``sub_box_test``); the benchmarks
 #: set "overbound" to measure the engine without the Bernstein test through every command.
 SUB_BOX_TEST = "auto"
+#: Bernstein coefficients the subdivision may keep for boxes waiting their turn (about 40
+#: bytes each); beyond it a box's patches are expanded again when it is taken.
+MAX_STORED = 1_000_000
 #: Above this degree check does not attach the Kharitonov polynomials' full Routh tables.
 MAX_TABLE_DEGREE = 40
 
@@ -477,6 +480,7 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
     max_depth = 0
     last_report = time.perf_counter()
     searched_depths: set[int] = set()
+    stored = 0  # Bernstein coefficients held by the boxes waiting in the heap
     while heap:
         if budget.exhausted():
             break
@@ -484,6 +488,8 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
         budget.boxes += 1
         max_depth = max(max_depth, depth)
         if conditions is not None:
+            if known is not None:
+                stored -= _patch_size(known)
             test = try_box(conditions, family, sub, known)
             ok, kh, directions, blame, inherit = (test.status == "proven", None, None, test.blame,
                                                   test.patches)
@@ -516,8 +522,15 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
                               proven=proven, depth=max_depth)
             i = blame if blame is not None else _split_index(family, sub, kh, directions)
             halves = sub.split(i)
-            if conditions is not None and inherit is not None:  # de Casteljau: no re-expansion
-                parts = tuple(zip(*(patch.halves(i) for patch in inherit), strict=True))
+            if conditions is not None and inherit is not None:
+                # de Casteljau: the halves' patches without a new expansion, while the patches
+                # waiting in the heap stay within MAX_STORED coefficients (else re-expanded)
+                size = _patch_size(inherit)
+                if stored + 2 * size <= MAX_STORED:
+                    parts = tuple(zip(*(patch.halves(i) for patch in inherit), strict=True))
+                    stored += 2 * size
+                else:
+                    parts = (None, None)
             else:
                 parts = (inherit, inherit)
             for half, part in zip(halves, parts, strict=True):
@@ -542,6 +555,10 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
                   proven=proven, depth=max_depth,
                   reason=f"budget exhausted after {budget.boxes} boxes; "
                   f"{float(unresolved):.3%} of the box volume is unproven")
+
+
+def _patch_size(patches) -> int:
+    return sum(patch.tensor.size for patch in patches)
 
 
 def check(
