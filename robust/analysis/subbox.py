@@ -81,6 +81,8 @@ class SubBoxTest:
     blame: int | None
     patches: tuple[Patch, ...] | None
     failing: str = ""
+    #: the least Bernstein coefficient of each condition over the box (a proof's data)
+    least: tuple[Fraction, ...] = ()
 
 
 def _to_sparse(poly: MultiPoly) -> dict:
@@ -180,7 +182,7 @@ def try_box(conditions: Conditions, family: UncertainPolynomial, box: Box,
     if not failing:
         check_point = box.low
         if is_hurwitz(family.coefficients_at(check_point)):
-            return SubBoxTest("proven", None, None, keep)
+            return SubBoxTest("proven", None, None, keep, least=tuple(p.low() for p in patches))
         return SubBoxTest("point", check_point, None, keep, "Hurwitz check point")
     for label, patch in failing:
         ends, value = patch.least_corner()

@@ -44,6 +44,7 @@ __all__ = [
     "DEFAULT_MAX_BOXES",
     "DEFAULT_MAX_SECONDS",
     "CheckResult",
+    "Proof",
     "Witness",
     "check",
     "decide",
@@ -116,6 +117,30 @@ class Witness:
 
 
 @dataclass(frozen=True, slots=True)
+class Proof:
+    """How the box was proven (all of it for "stable", part of it for "undecided").
+
+    ``nodes`` is the tree of midpoint splits in preorder: ``("split", i)`` halves the current
+    box at the midpoint of parameter i and is followed by the lower half's subtree, then the
+    upper half's; a leaf is ``("kharitonov",)`` (the leaf's interval overbound has Hurwitz
+    Kharitonov polynomials), ``("bernstein", least)`` (every Bernstein coefficient of the
+    conditions is positive; ``least`` holds each one's least coefficient) or ``("open",)``
+    (not proven). ``point`` is a Hurwitz point of the box; ``fixed`` gives, per Bernstein
+    condition (a_n, a_0, Delta_(n-1), signed positive at ``point``), the parameters fixed at
+    a value where the condition is least (it is monotone in them over the box).
+    """
+
+    nodes: tuple[tuple, ...]
+    point: tuple[Fraction, ...]
+    fixed: tuple[dict[int, Fraction], ...] = ()
+
+    @property
+    def pieces(self) -> int:
+        """Leaves of the tree, open ones included."""
+        return sum(1 for node in self.nodes if node[0] != "split")
+
+
+@dataclass(frozen=True, slots=True)
 class CheckResult:
     """The answer of :func:`check`.
 
@@ -152,6 +177,9 @@ class CheckResult:
     #: True when the wall-clock safety limit stopped the work before its budget: the only
     #: case in which the same input may give another result.
     safety_stop: bool = False
+    #: The partition behind "stable" (or the proven part of "undecided"); None after the
+    #: edge theorem, whose proof is not a partition (see ``decide(edges=False)``).
+    proof: Proof | None = None
 
     @property
     def method_text(self) -> str:
@@ -330,6 +358,7 @@ def decide(
     search: bool = True,
     seed: int = 0,
     sub_box_test: str | None = None,
+    use_edges: bool = True,
 ) -> CheckResult:
     """Decide robust Hurwitz stability of ``family`` over ``box`` (default: its own box).
 
@@ -347,6 +376,9 @@ def decide(
         subdivision wherever the family's conditions fit (:mod:`.subbox`), the interval
         overbound + Kharitonov elsewhere; ``"overbound"``: the overbound alone (the
         reference the benchmarks compare with); None: ``SUB_BOX_TEST``.
+    use_edges
+        Try the edge theorem on affine families (False when a partition is wanted as the
+        proof: a certificate).
     """
     sub_box_test = sub_box_test or SUB_BOX_TEST
     if sub_box_test not in ("auto", "overbound"):
@@ -362,12 +394,12 @@ def decide(
 
     def result(verdict: str, method: str, witness: Witness | None = None, unresolved=Fraction(0),
                largest: Box | None = None, reason: str = "", proven: int = 0, edges: int = 0,
-               depth: int = 0) -> CheckResult:
+               depth: int = 0, proof: Proof | None = None) -> CheckResult:
         if budget.clock_fired and verdict == Verdict.UNDECIDED:
             reason += "; stopped by the wall-clock safety limit before the work budget was used"
         return CheckResult(Verdict(verdict), method, kind, nominal_roots, witness, unresolved, largest,
                            budget.boxes, proven, edges, budget.elapsed(), kh, reason, box, depth,
-                           safety_stop=budget.clock_fired)
+                           safety_stop=budget.clock_fired, proof=proof)
 
     if nominal_table is None or not nominal_table.is_hurwitz:
         w = make_witness(family, start_point, "nominal point", box)
@@ -379,7 +411,8 @@ def decide(
         exact = family.structure == "independent"
         return result("stable", "kharitonov",
                       reason="the Kharitonov polynomials of the coefficient overbound are Hurwitz"
-                      + (" (exact: no parameter enters two coefficients)" if exact else ""))
+                      + (" (exact: no parameter enters two coefficients)" if exact else ""),
+                      proof=Proof((("kharitonov",),), start_point))
     w = _realise_failure(family, box, kh)
     if w is not None:
         method = "kharitonov-vertex" if kh.reason == "vertex" else "coefficient-sign"
@@ -391,7 +424,8 @@ def decide(
         test = try_box(conditions, family, box)
         if test.status == "proven":
             return result("stable", "bernstein", reason="a_n, a_0 and Delta_(n-1) are positive over "
-                          "the whole box (every Bernstein coefficient) and one point is Hurwitz")
+                          "the whole box (every Bernstein coefficient) and one point is Hurwitz",
+                          proof=Proof((("bernstein", test.least),), start_point, conditions.fixed))
         if test.point is not None:
             w = make_witness(family, test.point, f"box corner where the {test.failing} fails", box)
             if w is not None:
@@ -411,7 +445,7 @@ def decide(
                           reason="the leading coefficient reaches zero inside the box without "
                           "changing sign: the degree drops there, so robust stability of a "
                           "fixed-degree family cannot hold or be refuted by a rational witness")
-    if family.structure == "affine" and kh.reason != "degree":
+    if use_edges and family.structure == "affine" and kh.reason != "degree":
         edge_result = _check_edges(family, box, budget)
         if edge_result is not None:
             verdict, witness, count, note = edge_result
@@ -425,7 +459,7 @@ def decide(
                 return result("undecided", "edges", unresolved=Fraction(1), largest=box,
                               edges=count, reason=note)
     return _subdivide(family, box, budget, progress, result, seed, conditions,
-                      local_search=search or conditions is None)
+                      local_search=search or conditions is None, start_point=start_point)
 
 
 def _check_edges(family: UncertainPolynomial, box: Box, budget: _Budget):
@@ -468,7 +502,8 @@ def worst_root_angle_many(family: UncertainPolynomial, points: Sequence[Sequence
 
 
 def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, result, seed: int,
-               conditions: Conditions | None = None, local_search: bool = True):
+               conditions: Conditions | None = None, local_search: bool = True,
+               start_point: tuple[Fraction, ...] = ()):
     """Branch and bound over sub-boxes, largest first. Each sub-box is proven by the
     Bernstein test of the Hurwitz conditions when the family has them (:mod:`.subbox`),
     else by its own overbound + Kharitonov; what resists is split along the parameter the
@@ -481,10 +516,11 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
     last_report = time.perf_counter()
     searched_depths: set[int] = set()
     stored = 0  # Bernstein coefficients held by the boxes waiting in the heap
+    tree: dict[int, tuple] = {}  # entry number -> ("split", i, lower, upper) or a proven leaf
     while heap:
         if budget.exhausted():
             break
-        neg_vol, _, sub, depth, known = heapq.heappop(heap)
+        neg_vol, number, sub, depth, known = heapq.heappop(heap)
         budget.boxes += 1
         max_depth = max(max_depth, depth)
         if conditions is not None:
@@ -501,6 +537,7 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
         if ok:
             proven_volume += -neg_vol
             proven += 1
+            tree[number] = ("bernstein", test.least) if conditions is not None else ("kharitonov",)
         else:
             center = sub.center
             w = None
@@ -533,6 +570,7 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
                     parts = (None, None)
             else:
                 parts = (inherit, inherit)
+            tree[number] = ("split", i, counter, counter + 1)
             for half, part in zip(halves, parts, strict=True):
                 # midpoint splits halve the volume exactly
                 heapq.heappush(heap, (neg_vol / 2, counter, half, depth + 1, part))
@@ -543,8 +581,9 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
             last_report = now
     how = ("its Hurwitz conditions proven positive by Bernstein expansion" if conditions is not None
            else "its own overbound + Kharitonov")
+    proof = Proof(_preorder(tree), start_point, conditions.fixed if conditions is not None else ())
     if not heap:
-        return result("stable", "subdivision", proven=proven, depth=max_depth,
+        return result("stable", "subdivision", proven=proven, depth=max_depth, proof=proof,
                       reason=f"{proven} sub-boxes, each proven by {how}")
     unresolved = 1 - proven_volume
     # among the largest boxes left, name the one whose centre is closest to instability
@@ -552,9 +591,23 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
     scores = worst_root_angle_many(family, [entry[2].center for entry in top])
     largest = top[int(np.argmax(scores))][2]
     return result("undecided", "subdivision", unresolved=unresolved, largest=largest,
-                  proven=proven, depth=max_depth,
+                  proven=proven, depth=max_depth, proof=proof,
                   reason=f"budget exhausted after {budget.boxes} boxes; "
                   f"{float(unresolved):.3%} of the box volume is unproven")
+
+
+def _preorder(tree: dict[int, tuple]) -> tuple[tuple, ...]:
+    """The split tree from entry 0 in preorder; entries never taken from the heap are open."""
+    out: list[tuple] = []
+    stack = [0]
+    while stack:
+        node = tree.get(stack.pop(), ("open",))
+        if node[0] == "split":
+            out.append(("split", node[1]))
+            stack += [node[3], node[2]]  # the lower half comes out first
+        else:
+            out.append(node)
+    return tuple(out)
 
 
 def _patch_size(patches) -> int:

@@ -1,0 +1,214 @@
+"""Tests for robust.analysis.certificate (writing a proof) and robust.verify (checking it alone).
+
+Outside references: the Routh checks the verifier makes on pieces (their lowest corners and
+their Kharitonov polynomials) are cross-checked with sympy's exact root counting (Meurer et
+al., "SymPy: symbolic computing in Python", PeerJ Comput. Sci. 2017; tests/reference.py);
+certified-stable families are checked against the degree-3 Hurwitz condition on a dense grid
+(Gantmacher, "The Theory of Matrices", vol. 2, 1959, ch. XV, from memory); mechanical chains
+are stable for every positive part by the energy argument (Meirovitch, "Fundamentals of
+Vibrations", 2001, from memory).
+"""
+
+from __future__ import annotations
+
+import copy
+import itertools
+import json
+from fractions import Fraction
+from pathlib import Path
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from reference import isolated_counts
+from strategies import case_toml
+
+from robust.analysis.certificate import build_certificate, certify
+from robust.analysis.verdict import decide
+from robust.exact.interval import IntervalPolynomial
+from robust.model.case import load_case
+from robust.verify import verify_certificate, verify_file
+
+CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
+CHAIN = "(m1*s^2 + (c1 + c2)*s + k1 + k2)*(m2*s^2 + c2*s + k2) - (c2*s + k2)^2"
+
+
+def _write(tmp_path: Path, text: str, name: str = "case.toml"):
+    path = tmp_path / name
+    path.write_text(text)
+    return load_case(path)
+
+
+def _wide_chain(tmp_path: Path):
+    params = {n: {"nominal": v, "tolerance": "10%"}
+              for n, v in (("k1", "8000"), ("k2", "2000"), ("c1", "0.05"), ("c2", "0.02"))}
+    params = {"m1": {"range": ["0.02", "4"]}, "m2": {"range": ["0.02", "1"]}, **params}
+    return _write(tmp_path, case_toml(params, expression=CHAIN, title="wide chain"))
+
+
+def _roundtrip(data: dict) -> dict:
+    return json.loads(json.dumps(data))
+
+
+@pytest.mark.parametrize("path", CASES, ids=lambda p: p.stem)
+def test_every_shipped_case_gets_a_certificate_the_checker_confirms(path):
+    case = load_case(path)
+    result, data = certify(case)
+    verification = verify_certificate(_roundtrip(data), case)
+    assert verification.valid, verification.failed
+    assert verification.verdict == result.verdict.value
+    assert verification.pieces == data["summary"]["pieces"]
+
+
+def test_a_partition_of_bernstein_pieces_is_confirmed_and_its_corners_agree_with_sympy(tmp_path):
+    case = _wide_chain(tmp_path)
+    result, data = certify(case)
+    assert result.method == "subdivision" and data["summary"]["pieces"] >= 2
+    assert set(data["summary"]["by_method"]) == {"bernstein"}
+    assert verify_certificate(_roundtrip(data), case).valid
+    # the checker's Routh test at the pieces' lowest corners, against sympy's root counts
+    for low in itertools.islice(_piece_corners(data, case), 4):
+        assert isolated_counts(case.family.coefficients_at(low)) == (0, 0, case.family.degree)
+
+
+def _piece_corners(data: dict, case):
+    names = list(case.names)
+    stack = [([Fraction(data["box"][n][0]) for n in names], [Fraction(data["box"][n][1]) for n in names])]
+    for node in data["tree"]:
+        lo, hi = stack.pop()
+        if "split" in node:
+            i = names.index(node["split"])
+            mid = (lo[i] + hi[i]) / 2
+            stack += [(lo[:i] + [mid] + lo[i + 1:], hi), (lo, hi[:i] + [mid] + hi[i + 1:])]
+        else:
+            yield tuple(lo)
+
+
+def test_kharitonov_pieces_are_confirmed_and_agree_with_sympy(tmp_path):
+    """The overbound's subdivision, written as a certificate: every piece's Kharitonov
+    polynomials are Hurwitz by sympy too."""
+    case = _write(tmp_path, case_toml({"T": {"range": ["0.5", "2"]}, "K": {"range": ["1", "3"]}},
+                                      expression="T*s^3 + (1 + T)*s^2 + (1 + K*T/4)*s + K"))
+    result = decide(case.family, sub_box_test="overbound", use_edges=False, search=False)
+    assert result.verdict == "stable" and result.method == "subdivision"
+    data = build_certificate(case, result)
+    assert data["summary"]["by_method"] == {"kharitonov": data["summary"]["pieces"]} and data["summary"]["pieces"] > 1
+    assert verify_certificate(_roundtrip(data), case).valid
+    from robust.exact.polynomials import as_intervals
+
+    for low in itertools.islice(_piece_corners(data, case), 4):
+        assert isolated_counts(case.family.coefficients_at(low)) == (0, 0, 3)
+    # the whole-box overbound is not Hurwitz (a Kharitonov polynomial has right-half-plane roots)
+    bounds = [c.bound(as_intervals(case.family.box.intervals))[0] for c in case.family.coefficients]
+    family = IntervalPolynomial(tuple(Fraction(int(b[0].numerator), int(b[0].denominator)) for b in bounds),
+                                tuple(Fraction(int(b[1].numerator), int(b[1].denominator)) for b in bounds))
+    counts = [isolated_counts(family.vertex(label)) for label in ("K1", "K2", "K3", "K4")]
+    assert any(right > 0 for right, _, _ in counts)
+
+
+def test_affine_families_decided_by_edges_are_certified_by_a_partition(tmp_path):
+    params = {"u": {"range": ["0", "1"]}, "v": {"range": ["0", "1"]}}
+    case = _write(tmp_path, case_toml(params, ["1 + u", "3 + 3*u - v", "3 + 9*u", "1 + 7*u"]))
+    edges = decide(case.family, sub_box_test="overbound", search=False)
+    assert edges.method == "edges" and edges.proof is None
+    result, data = certify(case, result=edges)
+    assert data["verdict"] == "stable" and verify_certificate(_roundtrip(data), case).valid
+
+
+def test_an_undecided_result_certifies_only_its_proven_part(tmp_path):
+    case = _wide_chain(tmp_path)
+    result = decide(case.family, max_boxes=3, search=False)
+    assert result.verdict == "undecided"
+    data = build_certificate(case, result)
+    verification = verify_certificate(_roundtrip(data), case)
+    assert verification.valid and data["summary"]["open"] >= 1
+    assert "open piece" in verification.statement
+    data["verdict"] = "stable"  # claiming more than was proven
+    claimed = verify_certificate(data, case)
+    assert not claimed.valid and "open piece" in claimed.failed["reason"]
+
+
+# -- tampering ---------------------------------------------------------------------------------
+
+
+@pytest.fixture
+def certified(tmp_path):
+    case = _wide_chain(tmp_path)
+    _, data = certify(case)
+    return case, _roundtrip(data)
+
+
+def test_altering_one_exact_number_is_invalid(certified):
+    case, data = certified
+    bad = copy.deepcopy(data)
+    leaf = next(k for k, node in enumerate(bad["tree"]) if node.get("piece") == "bernstein")
+    value = Fraction(bad["tree"][leaf]["least"][2])
+    bad["tree"][leaf]["least"][2] = str(value + Fraction(1, 10**9))
+    result = verify_certificate(bad, case)
+    assert not result.valid and result.failed["piece"] == 1 and "least" in result.failed["reason"]
+    bad = copy.deepcopy(data)
+    bad["box"]["m1"][1] = "5"  # a wider box than the case's
+    assert not verify_certificate(bad, case).valid
+
+
+def test_dropping_a_piece_is_invalid(certified):
+    case, data = certified
+    bad = copy.deepcopy(data)
+    del bad["tree"][-1]
+    result = verify_certificate(bad, case)
+    assert not result.valid and "not covered" in result.failed["reason"]
+
+
+def test_shifting_a_piece_is_invalid(certified):
+    """Splitting along another parameter moves every later piece's bounds."""
+    case, data = certified
+    bad = copy.deepcopy(data)
+    split = next(k for k, node in enumerate(bad["tree"]) if "split" in node)
+    bad["tree"][split]["split"] = "k1" if bad["tree"][split]["split"] != "k1" else "k2"
+    result = verify_certificate(bad, case)
+    assert not result.valid and result.failed["piece"] is not None and result.failed["box"] is not None
+
+
+def test_a_changed_case_file_is_a_case_mismatch(tmp_path):
+    case = _wide_chain(tmp_path)
+    _, data = certify(case)
+    path = tmp_path / "cert.json"
+    path.write_text(json.dumps(data))
+    assert verify_file(path, tmp_path / "case.toml").valid
+    (tmp_path / "case.toml").write_text((tmp_path / "case.toml").read_text().replace('"10%"', '"12%"'))
+    result = verify_file(path, tmp_path / "case.toml")
+    assert not result.valid and "SHA-256" in result.failed["reason"]
+
+
+def test_a_witness_moved_to_a_stable_point_is_invalid(tmp_path):
+    params = {"k": {"range": ["0.5", "2"], "nominal": "1.5"}}
+    case = _write(tmp_path, case_toml(params, ["k - 1", "2", "3", "1"]))
+    _, data = certify(case)
+    assert data["verdict"] == "unstable" and verify_certificate(_roundtrip(data), case).valid
+    data["witness"] = {"k": "3/2"}  # 0.5 s^3 + 2 s^2 + 3 s + 1: 2*3 > 0.5*1, Hurwitz (Gantmacher)
+    assert not verify_certificate(data, case).valid
+
+
+# -- certified families agree with the closed form ------------------------------------------
+
+
+@settings(max_examples=25, deadline=None)
+@given(st.integers(-2, 2), st.integers(-2, 2), st.integers(-2, 2), st.sampled_from(["0.2", "0.4"]))
+def test_certified_cubic_families_hold_on_a_dense_grid(u, w, q, r):
+    """s^3 + (2 + u x) s^2 + (2 + y) s + (3 + q x + y + w x y) over [-r, r]^2: a VALID
+    certificate of stability means the degree-3 condition holds on a dense grid."""
+    import tempfile
+
+    params = {n: {"nominal": "0", "range": [f"-{r}", r]} for n in ("x", "y")}
+    text = case_toml(params, ["1", f"2 + {u}*x", "2 + y", f"3 + {q}*x + y + {w}*x*y"])
+    with tempfile.TemporaryDirectory() as folder:
+        case = _write(Path(folder), text)
+        result, data = certify(case, max_boxes=2000)
+        verification = verify_certificate(_roundtrip(data), case)
+    assert verification.valid or result.verdict.value == "undecided"
+    if data["verdict"] == "stable":
+        (x0, x1), (y0, y1) = case.family.box.intervals
+        for i, j in itertools.product(range(13), repeat=2):
+            a3, a2, a1, a0 = case.family.coefficients_at((x0 + (x1 - x0) * Fraction(i, 12),
+                                                          y0 + (y1 - y0) * Fraction(j, 12)))
+            assert a2 > 0 and a1 > 0 and a0 > 0 and a2 * a1 > a3 * a0
