@@ -19,12 +19,8 @@ from typing import Any
 import click
 
 from ._version import __version__
-from .analysis.outcomes import Outcome
+from .analysis.defaults import DEFAULT_MAX_BOXES, DEFAULT_MAX_SECONDS
 from .errors import RobustError
-from .exact.numbers import approx_text, percent_text
-from .exact.routh import RouthTable
-from .model.forms import routh_table
-from .render.text import render_table
 
 #: The example polynomial ``robust routh`` analyses when given none: the closed loop of a
 #: small speed-controlled fan (invented for the demo).
@@ -125,6 +121,8 @@ def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, as_jso
     Without POLYNOMIAL or --coeffs, a built-in example is used.
     """
     from .errors import InputError
+    from .model.forms import routh_table
+    from .render.text import render_table
 
     if polynomial is not None and coeffs is not None:
         raise InputError("routh", "give either POLYNOMIAL or --coeffs, not both")
@@ -136,7 +134,7 @@ def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, as_jso
         source: object = items
     else:
         source = polynomial if polynomial is not None else EXAMPLE_POLYNOMIAL
-    table: RouthTable = routh_table(source, shift=sigma)
+    table = routh_table(source, shift=sigma)
     if as_json:
         _emit_json(table.as_dict())
     else:
@@ -145,6 +143,8 @@ def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, as_jso
 
 def _progress_printer(label: str):
     """A progress callback writing one self-overwriting line to stderr after the first second."""
+    from .exact.numbers import percent_text
+
     shown = {"any": False}
 
     def report(proven, boxes: int, seconds: float) -> None:
@@ -162,8 +162,6 @@ def _progress_printer(label: str):
 
 
 def _budget_options(func: Callable[..., Any]) -> Callable[..., Any]:
-    from .analysis.verdict import DEFAULT_MAX_BOXES, DEFAULT_MAX_SECONDS
-
     func = click.option("--max-boxes", type=click.IntRange(min=1), default=DEFAULT_MAX_BOXES,
                         show_default=True, help="Work budget: sub-boxes/edges to examine.")(func)
     func = click.option("--max-seconds", type=click.FloatRange(min=0.01), default=DEFAULT_MAX_SECONDS,
@@ -201,6 +199,7 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
     Exit code 0: robustly stable (and requirements met); 1: unstable, undecided or a
     requirement failed; 2: bad input.
     """
+    from .analysis.outcomes import Outcome
     from .analysis.requirements import check_requirements
     from .analysis.verdict import check
     from .model.case import load_case
@@ -264,6 +263,7 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
     Exit code 1 when a requirement of the case is not met.
     """
     from .analysis.margin import margin
+    from .analysis.outcomes import Outcome
     from .exact.numbers import to_fraction
     from .model.case import load_case
     from .render.text import render_margin
@@ -340,6 +340,7 @@ def _stage_printer(line: str) -> None:
 
 def _summary_lines(analysis, files) -> list[str]:
     """The short summary ``robust report`` and ``robust demo`` print."""
+    from .exact.numbers import approx_text
     from .render.content import outcome
 
     check = analysis.check

@@ -17,8 +17,6 @@ from dataclasses import dataclass
 from fractions import Fraction
 from pathlib import Path
 
-import sympy as sp
-
 from ..errors import CaseError, FormulaError, InputError
 from ..exact import sparse
 from ..exact.numbers import approx_text, parse_number, to_fraction
@@ -394,7 +392,7 @@ def parse_case(text: str, path: str = "<case>") -> Case:
     slots = 1 + len(names)
     try:
         family = build_family(sparse.to_multipoly(numerator, slots), sparse.to_multipoly(denominator, slots),
-                              sp.Symbol(variable), names, box, nominal,
+                              variable, names, box, nominal,
                               limits=tuple(p.limits for p in parameters))
     except InputError as error:
         raise reader.error("polynomial", form, error.problem, error.expected) from None
