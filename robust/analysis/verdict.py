@@ -37,6 +37,7 @@ from ..exact.routh import RootCounts, is_hurwitz, routh_table
 from ..model.family import Box, UncertainPolynomial
 from .edges import box_edges, check_segment
 from .outcomes import Verdict
+from .progress import tell
 from .search import batch_worst_angle, search_witness
 
 __all__ = [
@@ -333,6 +334,7 @@ def decide(
         Run the witness search before subdividing (off for margin bisection, where the
         caller searches itself).
     """
+    tell("decision")  # progress for whoever listens (the command line); no effect on the result
     box = box or family.box
     budget = _Budget(max_seconds, max_boxes)
     kind = family.kind
