@@ -144,7 +144,7 @@ def test_every_command_help_lists_its_exit_codes(command):
 # -- case files: errors that say what to type ----------------------------------------------------
 
 
-def test_bare_tolerance_reaching_zero_is_refused_with_the_percentage_to_write(tmp_path):
+def test_bare_tolerance_crossing_zero_is_refused_with_the_percentage_to_write(tmp_path):
     """tolerance = 5 on a 470 nF part is +-5 F: refused, with "5%" suggested."""
     parameters = ('[parameters.R]\nnominal = "10k"\ntolerance = "1%"\n'
                   '[parameters.C]\nnominal = "470n"\ntolerance = 5\n')

@@ -177,22 +177,24 @@ def _tolerance(reader: _Reader, section: str, value: object,
             raise reader.error(section, "tolerance", "malformed tolerance", expected, value) from None
         if dev < 0:
             raise reader.error(section, "tolerance", "a tolerance cannot be negative", expected, value)
-        if nominal != 0 and dev >= abs(nominal):
+        # a bare number ("5", 5) may be a percentage without its sign; "20m" is absolute on purpose
+        bare = not isinstance(value, str) or body[-1:].isdigit()
+        if bare and nominal != 0 and dev > abs(nominal):  # the range crosses zero: the sign flips
             # "tolerance = 5" on a 470 nF part: almost surely "5%" was meant, not +-5 F
             pct = approx_text(100 * dev / abs(nominal), 3)
             raise reader.error(
                 section, "tolerance",
                 f"a plain number is an absolute tolerance: +-{approx_text(dev)} around the nominal "
-                f"{approx_text(nominal)} is {pct} % and reaches zero",
-                f'a percentage written as text, such as tolerance = "{approx_text(dev)}%", a smaller '
+                f"{approx_text(nominal)} is {pct} % and crosses zero",
+                f'a percentage written as text, such as tolerance = "{body}%", a smaller '
                 "absolute tolerance, or range = [low, high] for a range through zero", value)
-        if nominal != 0 and dev >= abs(nominal) / 5:
+        if bare and nominal != 0 and dev >= abs(nominal) / 5:
             line = reader.line_of(section, "tolerance")
             where = f"{reader.path}:{line}" if line else reader.path
             reader.notes.append(
                 f"{where}: {section}.tolerance = {text} is absolute: +-{approx_text(dev)} around "
                 f"{approx_text(nominal)}, {approx_text(100 * dev / abs(nominal), 3)} % of the nominal; "
-                f'a percentage is written as text, e.g. tolerance = "{text}%"')
+                f'a percentage is written as text, e.g. tolerance = "{body}%"')
     return dev, dev, text
 
 
