@@ -27,10 +27,10 @@ from dataclasses import dataclass
 from fractions import Fraction
 
 import numpy as np
-from scipy import stats
 
 from ..exact.numbers import binary_exponent, format_fraction, json_float, to_float
 from ..exact.routh import is_hurwitz
+from .binomial import clopper_pearson
 
 __all__ = ["YieldResult", "draw_parameters", "estimate_yield", "float_routh_screen"]
 
@@ -330,10 +330,9 @@ def estimate_yield(case, n: int = 100_000, seed: int = 0, confidence: float = 0.
         done += size
         if progress is not None:
             progress(done, n)
-    test = stats.binomtest(stable_total, n)
-    ci = test.proportion_ci(confidence_level=confidence, method="exact")
+    low, high = clopper_pearson(stable_total, n, confidence)
     exact = tuple((name, _exact(lo_unstable[i], scales[i]), _exact(hi_unstable[i], scales[i]))
                   for i, name in enumerate(family.names) if np.isfinite(lo_unstable[i]))
     ranges = tuple((name, to_float(lo), to_float(hi)) for name, lo, hi in exact)
-    return YieldResult(n, stable_total, seed, confidence, (float(ci.low), float(ci.high)), rechecks,
+    return YieldResult(n, stable_total, seed, confidence, (low, high), rechecks,
                        ranges, time.perf_counter() - started, exact)
