@@ -30,14 +30,15 @@ import statistics
 import sys
 import time
 from fractions import Fraction
+from itertools import pairwise
 from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-import gmpy2  # noqa: E402  (the benchmark names its backends itself)
+import gmpy2
 
 try:
-    import flint  # noqa: E402
+    import flint
 except ImportError:  # optional
     flint = None
 
@@ -70,7 +71,7 @@ def _routh_fraction_free(coefficients: list) -> int:
             break
         first.append(row[0])
     signs = [x > 0 for x in first if x != 0]
-    return sum(1 for p, q in zip(signs, signs[1:], strict=False) if p != q)
+    return sum(1 for p, q in pairwise(signs) if p != q)
 
 
 def bench_routh() -> None:
@@ -160,8 +161,8 @@ def bench_crossings() -> None:
         print("   flint fmpz_poly.complex_roots           not installed")
     else:
         flint_time = _median_time(lambda: _flint_least_root(polys))
-        print(f"   flint fmpz_poly.complex_roots (balls)  {flint_time:8.4f} s   ({ours / flint_time:.1f}x faster "
-              "than ours; no exact bracket)")
+        print(f"   flint fmpz_poly.complex_roots (balls)  {flint_time:8.4f} s   "
+              f"({ours / flint_time:.1f}x faster than ours; no exact bracket)")
 
 
 def bench_evaluation() -> None:

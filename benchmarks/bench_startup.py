@@ -25,7 +25,8 @@ HEAVY = ("sympy", "scipy", "networkx", "matplotlib", "numpy", "mpmath", "flint",
 COMMANDS = [
     ("robust --help", ["-m", "robust", "--help"], 0.35),
     ("robust routh", ["-m", "robust", "routh", "s^3 + 4*s^2 + 6*s + 4"], 0.35),
-    ("robust check (interval)", ["-m", "robust", "check", str(ROOT / "cases" / "interval_measured.toml")], 0.8),
+    ("robust check (interval)",
+     ["-m", "robust", "check", str(ROOT / "cases" / "interval_measured.toml")], 0.8),
 ]
 
 

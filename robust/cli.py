@@ -349,6 +349,7 @@ def rank_command(case: str, max_seconds: float, max_boxes: int, max_tests: int, 
 
     loaded = _load(case)
     shown = _progress("rank", None, "decision")
+    shown.brackets = False  # one search per parameter: no single bracket to show
     with listening(shown.listen):
         result = rank(loaded, max_seconds=max_seconds, max_boxes=max_boxes, max_tests=max_tests)
     first = result.parameters[0].name if result.parameters else None
@@ -388,8 +389,21 @@ def yield_command(case: str, draws: int, seed: int, as_json: bool) -> None:
         click.echo(render_yield(loaded, result))
 
 
-def _stage_printer(line: str) -> None:
-    click.echo(line, err=True)
+class _Stages:
+    """The stages of a report on stderr: each as it starts on a terminal (with the live
+    decision counter of :class:`~robust.render.progress.Progress`), else one line at the end."""
+
+    def __init__(self, label: str) -> None:
+        self.label = label
+        self.lines: list[str] = []
+        self.shown = _progress(label, None, "decision")
+
+    def __call__(self, line: str) -> None:
+        self.lines.append(line)
+        self.shown.restart(line, brackets=line.startswith("margin"))
+
+    def finish(self) -> None:
+        self.shown.finish("; ".join(self.lines))
 
 
 def _summary_lines(analysis, files) -> list[str]:
@@ -448,15 +462,19 @@ def report_command(case: str, directory: str, max_boxes: int, search_boxes: int,
     Exit codes: 0 the report was written (whatever it concludes), 2 bad input or an
     unusable output directory.
     """
+    from .analysis.progress import listening
     from .analysis.signoff import analyse
     from .render.data import result_data
     from .render.writer import check_directory, write_report
 
     check_directory(directory)
     loaded = _load(case)
-    analysis = analyse(loaded, max_seconds=max_seconds, max_boxes=max_boxes, search_boxes=search_boxes,
-                       search_tests=search_tests, yield_draws=draws, seed=seed, progress=_stage_printer)
-    files = write_report(analysis, directory, progress=_stage_printer)
+    stages = _Stages("report")
+    with listening(stages.shown.listen):
+        analysis = analyse(loaded, max_seconds=max_seconds, max_boxes=max_boxes, search_boxes=search_boxes,
+                           search_tests=search_tests, yield_draws=draws, seed=seed, progress=stages)
+        files = write_report(analysis, directory, progress=stages)
+    stages.finish()
     if as_json:
         _emit_json(result_data(analysis))
     else:
@@ -482,6 +500,7 @@ def demo_command(directory: str, as_json: bool) -> None:
     from importlib import resources
     from pathlib import Path
 
+    from .analysis.progress import listening
     from .analysis.signoff import analyse
     from .model.case import load_case
     from .render.content import rerun_command
@@ -495,8 +514,11 @@ def demo_command(directory: str, as_json: bool) -> None:
         loaded = load_case(path)
     # the report names the copy beside it, which holds the same bytes (same SHA-256)
     loaded = dataclasses.replace(loaded, path=str(Path(target) / "case.toml"))
-    analysis = analyse(loaded, yield_draws=20_000, seed=0, progress=_stage_printer)
-    files = write_report(analysis, target, extra_files={"case.toml": text}, progress=_stage_printer)
+    stages = _Stages("demo")
+    with listening(stages.shown.listen):
+        analysis = analyse(loaded, yield_draws=20_000, seed=0, progress=stages)
+        files = write_report(analysis, target, extra_files={"case.toml": text}, progress=stages)
+    stages.finish()
     if as_json:
         _emit_json(result_data(analysis))
         return

@@ -49,6 +49,9 @@ class Progress:
         self.started = time.perf_counter()
         self.lower: Any = None  # the largest scale decided stable so far
         self.upper: Any = None  # the least scale refuted so far
+        #: show the scales decided so far (one search over one scale: the margin, not a
+        #: ranking, whose searches run one per parameter)
+        self.brackets = True
         is_tty = getattr(self.stream, "isatty", lambda: False)
         try:
             self.live = bool(is_tty()) if live is None else live
@@ -74,13 +77,19 @@ class Progress:
         """A listener for :func:`robust.analysis.progress.listening`."""
         if event == "decision":
             self.advance(1)
-        elif event == "tested":
+        elif event == "tested" and self.brackets:
             scale, verdict = facts.get("scale"), getattr(facts.get("verdict"), "value", "")
             if verdict == "stable" and (self.lower is None or scale > self.lower):
                 self.lower = scale
             elif verdict == "unstable" and (self.upper is None or scale < self.upper):
                 self.upper = scale
             self.show(self.bracket_text())
+
+    def restart(self, note: str, brackets: bool) -> None:
+        """A new stage: forget the scales of the last one."""
+        self.lower = self.upper = None
+        self.brackets = brackets
+        self.show(note)
 
     def bracket_text(self) -> str:
         """The scales decided so far, as ``stable to x1.2, unstable from x1.3``."""
