@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from fractions import Fraction
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from .numbers import from_mpq, mpq, to_mpq
 
@@ -36,7 +36,7 @@ def hurwitz_matrix(coefficients: Sequence[sp.Expr], order: int) -> sp.Matrix:
     return sp.Matrix(order, order, lambda i, j: a(n - (2 * (j + 1) - (i + 1))))
 
 
-def determinant(rows: list[list]) -> object:
+def determinant(rows: list[list]) -> Any:
     """The exact determinant of a square matrix of GMP rationals (Gaussian elimination;
     the rows are consumed)."""
     size = len(rows)
@@ -61,7 +61,7 @@ def determinant(rows: list[list]) -> object:
     return result * sign
 
 
-def _evaluate(coefficients: Sequence, x: object) -> object:
+def _evaluate(coefficients: Sequence, x: Any) -> Any:
     total = mpq(0)
     for c in coefficients:
         total = total * x + c

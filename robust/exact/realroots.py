@@ -14,6 +14,7 @@ from collections.abc import Sequence
 from fractions import Fraction
 from itertools import pairwise
 from math import lcm
+from typing import Any
 
 from . import intpoly
 from .intpoly import Poly
@@ -33,14 +34,14 @@ def square_free(coefficients: Sequence[Fraction]) -> Poly:
     return intpoly.primitive(intpoly.divide_exact(p, g)) if len(g) > 1 else p
 
 
-def _value(p: Poly, x: object) -> object:
+def _value(p: Poly, x: Any) -> Any:
     total = mpq(0)
     for c in reversed(p):
         total = total * x + c
     return total
 
 
-def _sign(value: object) -> int:
+def _sign(value: Any) -> int:
     return (value > 0) - (value < 0)
 
 
@@ -55,7 +56,7 @@ def _sturm(p: Poly) -> list[Poly]:
     return chain
 
 
-def _changes(chain: list[Poly], x: object) -> int:
+def _changes(chain: list[Poly], x: Any) -> int:
     signs = [s for s in (_sign(_value(q, x)) for q in chain) if s]
     return sum(1 for a, b in pairwise(signs) if a != b)
 
@@ -86,7 +87,8 @@ def least_root_in(coefficients: Sequence[Fraction], low: Fraction, high: Fractio
     p = square_free(coefficients)
     if len(p) <= 1:
         return None
-    lo, hi = to_mpq(Fraction(low)), to_mpq(Fraction(high))
+    lo: Any = to_mpq(Fraction(low))
+    hi: Any = to_mpq(Fraction(high))
     if len(p) == 2:  # a linear polynomial: its root, exactly
         root = from_mpq(mpq(-p[0], p[1]))
         return (root, root) if low < root <= high else None
@@ -106,7 +108,7 @@ def least_root_in(coefficients: Sequence[Fraction], low: Fraction, high: Fractio
         else:
             lo = mid
     # narrow: one simple root, a sign change between the ends
-    width = to_mpq(Fraction(rel_width))
+    width: Any = to_mpq(Fraction(rel_width))
     low_sign = _sign(_value(p, lo))
     while hi - lo > width * hi:
         mid = (lo + hi) / 2

@@ -181,11 +181,11 @@ def _tolerance(reader: _Reader, section: str, value: object,
         bare = not isinstance(value, str) or body[-1:].isdigit()
         if bare and nominal != 0 and dev > abs(nominal):  # the range crosses zero: the sign flips
             # "tolerance = 5" on a 470 nF part: almost surely "5%" was meant, not +-5 F
-            pct = approx_text(100 * dev / abs(nominal), 3)
+            share = approx_text(100 * dev / abs(nominal), 3)
             raise reader.error(
                 section, "tolerance",
                 f"a plain number is an absolute tolerance: +-{approx_text(dev)} around the nominal "
-                f"{approx_text(nominal)} is {pct} % and crosses zero",
+                f"{approx_text(nominal)} is {share} % and crosses zero",
                 f'a percentage written as text, such as tolerance = "{body}%", a smaller '
                 "absolute tolerance, or range = [low, high] for a range through zero", value)
         if bare and nominal != 0 and dev >= abs(nominal) / 5:
