@@ -390,20 +390,25 @@ def yield_command(case: str, draws: int, seed: int, as_json: bool) -> None:
 
 
 class _Stages:
-    """The stages of a report on stderr: each as it starts on a terminal (with the live
-    decision counter of :class:`~robust.render.progress.Progress`), else one line at the end."""
+    """The stages of a report on stderr: on a terminal beside the live decision counter of
+    :class:`~robust.render.progress.Progress`; elsewhere one line as each stage starts (a
+    report runs for many seconds, and a log or a supervising program learns from these lines
+    that the analysis has begun)."""
 
     def __init__(self, label: str) -> None:
-        self.label = label
         self.lines: list[str] = []
         self.shown = _progress(label, None, "decision")
 
     def __call__(self, line: str) -> None:
         self.lines.append(line)
-        self.shown.restart(line, brackets=line.startswith("margin"))
+        if self.shown.live:
+            self.shown.restart(line, brackets=line.startswith("margin"))
+        else:
+            _say(line)
 
     def finish(self) -> None:
-        self.shown.finish("; ".join(self.lines))
+        if self.shown.live:
+            self.shown.finish("; ".join(self.lines))
 
 
 def _summary_lines(analysis, files) -> list[str]:
