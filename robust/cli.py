@@ -19,12 +19,8 @@ from typing import Any
 import click
 
 from ._version import __version__
-from .analysis.outcomes import Outcome
+from .analysis.defaults import DEFAULT_MAX_BOXES, DEFAULT_MAX_SECONDS
 from .errors import RobustError
-from .exact.numbers import approx_text, percent_text
-from .exact.routh import RouthTable
-from .model.forms import routh_table
-from .render.text import render_table
 
 #: The example polynomial ``robust routh`` analyses when given none: the closed loop of a
 #: small speed-controlled fan (invented for the demo).
@@ -113,7 +109,40 @@ def main() -> None:
     """
 
 
-@main.command("routh")
+class _PolynomialCommand(click.Command):
+    """A command whose argument may start with a minus sign: ``robust routh "-(s+1)*(s-2)"``.
+
+    A word that starts with one ``-``, is not one of the command's options and is not an
+    option's value is the polynomial, as if written after ``--``; ``--`` itself works too.
+    """
+
+    def parse_args(self, ctx: click.Context, args: list[str]) -> list[str]:
+        names: dict[str, bool] = {}  # option name -> whether it takes a value
+        for param in self.get_params(ctx):
+            if isinstance(param, click.Option):
+                for name in (*param.opts, *param.secondary_opts):
+                    names[name] = not param.is_flag and not param.count
+        kept: list[str] = []
+        moved: list[str] = []
+        words = iter(args)
+        for word in words:
+            if word == "--":
+                moved.extend(words)
+                break
+            if word in names or word.split("=", 1)[0] in names:
+                kept.append(word)
+                if names.get(word):  # the option's value follows, even when it starts with '-'
+                    value = next(words, None)
+                    if value is not None:
+                        kept.append(value)
+            elif word.startswith("-") and not word.startswith("--") and len(word) > 1:
+                moved.append(word)
+            else:
+                kept.append(word)
+        return super().parse_args(ctx, [*kept, "--", *moved] if moved else kept)
+
+
+@main.command("routh", cls=_PolynomialCommand)
 @click.argument("polynomial", required=False)
 @click.option("--coeffs", help='Coefficients highest power first, e.g. "1, 2, 3".')
 @click.option("--shift", "sigma", default="0", show_default=True,
@@ -122,9 +151,15 @@ def main() -> None:
 def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, as_json: bool) -> None:
     """Exact Routh array of POLYNOMIAL (an expression in s) and its root counts.
 
-    Without POLYNOMIAL or --coeffs, a built-in example is used.
+    Without POLYNOMIAL or --coeffs, a built-in example is used. A polynomial may start
+    with a minus sign, as in robust routh "-(s+1)*(s-2)"; after -- everything is the
+    polynomial.
+
+    Exit codes: 0 the table was computed (whatever the roots), 2 bad input.
     """
     from .errors import InputError
+    from .model.forms import routh_table
+    from .render.text import render_table
 
     if polynomial is not None and coeffs is not None:
         raise InputError("routh", "give either POLYNOMIAL or --coeffs, not both")
@@ -136,34 +171,32 @@ def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, as_jso
         source: object = items
     else:
         source = polynomial if polynomial is not None else EXAMPLE_POLYNOMIAL
-    table: RouthTable = routh_table(source, shift=sigma)
+    table = routh_table(source, shift=sigma)
     if as_json:
         _emit_json(table.as_dict())
     else:
-        click.echo(render_table(table))
+        # with a shift, the plain polynomial's counts tell "unstable" from "slower than asked"
+        unshifted = routh_table(source).roots if table.shift else None
+        click.echo(render_table(table, unshifted))
 
 
-def _progress_printer(label: str):
-    """A progress callback writing one self-overwriting line to stderr after the first second."""
-    shown = {"any": False}
+def _load(case: str):
+    """Load a case file; say its notes (how a value was read) once on stderr."""
+    from .model.case import load_case
 
-    def report(proven, boxes: int, seconds: float) -> None:
-        if seconds < 1.0:
-            return
-        shown["any"] = True
-        click.echo(f"\r{label}: {percent_text(proven, 1):>6} of the box proven, {boxes} boxes, "
-                   f"{seconds:5.1f} s", err=True, nl=False)
+    loaded = load_case(case)
+    for note in loaded.notes:
+        _say(f"robust: note: {note}")
+    return loaded
 
-    def finish() -> None:
-        if shown["any"]:
-            click.echo("", err=True)
 
-    return report, finish
+def _progress(label: str, total: int | None, unit: str):
+    from .render.progress import Progress
+
+    return Progress(label, total, unit, stream=sys.stderr)
 
 
 def _budget_options(func: Callable[..., Any]) -> Callable[..., Any]:
-    from .analysis.verdict import DEFAULT_MAX_BOXES, DEFAULT_MAX_SECONDS
-
     func = click.option("--max-boxes", type=click.IntRange(min=1), default=DEFAULT_MAX_BOXES,
                         show_default=True, help="Work budget: sub-boxes/edges to examine.")(func)
     func = click.option("--max-seconds", type=click.FloatRange(min=0.01), default=DEFAULT_MAX_SECONDS,
@@ -198,18 +231,24 @@ _CASE = click.Path(dir_okay=True, path_type=str)
 def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) -> None:
     """Prove CASE stable over every tolerance, or find a verified counterexample.
 
-    Exit code 0: robustly stable (and requirements met); 1: unstable, undecided or a
-    requirement failed; 2: bad input.
+    Exit codes: 0 robustly stable (and requirements met), 1 unstable, undecided or a
+    requirement failed, 2 bad input.
     """
+    from .analysis.outcomes import Outcome
     from .analysis.requirements import check_requirements
     from .analysis.verdict import check
-    from .model.case import load_case
+    from .exact.numbers import percent_text
     from .render.text import render_check, render_requirements
 
-    loaded = load_case(case)
-    report, finish = _progress_printer("check")
+    loaded = _load(case)
+    shown = _progress("check", max_boxes, "box")
+
+    def report(proven, boxes: int, _seconds: float) -> None:
+        shown.reach(boxes, f"{percent_text(proven, 1)} of the box proven")
+
     result = check(loaded, max_seconds=max_seconds, max_boxes=max_boxes, progress=report)
-    finish()
+    shown.reach(result.boxes)
+    shown.finish(f"{result.verdict.value} ({result.method_text})", quiet_under=1.0)
     requirements = check_requirements(loaded, max_seconds=max_seconds) \
         if result.verdict == "stable" else ()
     if as_json:
@@ -229,15 +268,17 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
               help="Also write the dependency graph as GraphML to this new file.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
-    """Show which parameter drives which coefficient, in which direction, and the bounds."""
-    from .model.case import load_case
+    """Show which parameter drives which coefficient, in which direction, and the bounds.
+
+    Exit codes: 0 shown, 2 bad input or an unusable --graphml path.
+    """
     from .model.graph import build_graph, write_graphml
     from .render.text import render_trace, trace_data
     from .render.writer import check_new_file
 
     if graphml is not None:
         check_new_file(graphml, "--graphml")
-    loaded = load_case(case)
+    loaded = _load(case)
     graph = build_graph(loaded.family)
     if graphml is not None:
         write_graphml(graph, graphml)
@@ -261,22 +302,28 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
                    max_tests: int, no_decay: bool, as_json: bool) -> None:
     """Robust margin rho* (how far every tolerance can grow) and the decay-rate margin.
 
-    Exit code 1 when a requirement of the case is not met.
+    Exit codes: 0 computed (and requirements met), 1 a requirement of the case is not
+    proven met, 2 bad input.
     """
     from .analysis.margin import margin
-    from .exact.numbers import to_fraction
-    from .model.case import load_case
+    from .analysis.outcomes import Outcome
+    from .analysis.progress import listening
+    from .exact.numbers import approx_text, to_fraction
     from .render.text import render_margin
 
-    loaded = load_case(case)
+    loaded = _load(case)
     cap_value = to_fraction(cap, "--cap")
     if cap_value <= 0:
         from .errors import InputError
 
         raise InputError("--cap", "must be positive", "a number such as 100", cap)
-    click.echo(f"margin: computing ({max_tests} decisions of at most {max_boxes} boxes)...", err=True)
-    result = margin(loaded, cap=cap_value, rel_tol=rel_tol, max_seconds=max_seconds,
-                    max_boxes=max_boxes, max_tests=max_tests, with_decay=not no_decay)
+    shown = _progress("margin", None, "decision")
+    with listening(shown.listen):
+        result = margin(loaded, cap=cap_value, rel_tol=rel_tol, max_seconds=max_seconds,
+                        max_boxes=max_boxes, max_tests=max_tests, with_decay=not no_decay)
+    upper = "no failure up to the cap" if result.margin.upper is None \
+        else approx_text(result.margin.upper, 6)
+    shown.finish(f"rho* in [{approx_text(result.margin.lower, 6)}, {upper}]")
     if as_json:
         _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
     else:
@@ -292,15 +339,22 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
 @_search_budget_options(500, 16)
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 def rank_command(case: str, max_seconds: float, max_boxes: int, max_tests: int, as_json: bool) -> None:
-    """Rank the parameters, most critical first, with their margins."""
+    """Rank the parameters, most critical first, with their margins.
+
+    Exit codes: 0 ranked, 2 bad input.
+    """
+    from .analysis.progress import listening
     from .analysis.rank import rank
-    from .model.case import load_case
     from .render.text import render_rank
 
-    loaded = load_case(case)
-    click.echo(f"rank: computing ({max_tests} decisions of at most {max_boxes} boxes per part)...",
-               err=True)
-    result = rank(loaded, max_seconds=max_seconds, max_boxes=max_boxes, max_tests=max_tests)
+    loaded = _load(case)
+    shown = _progress("rank", None, "decision")
+    shown.brackets = False  # one search per parameter: no single bracket to show
+    with listening(shown.listen):
+        result = rank(loaded, max_seconds=max_seconds, max_boxes=max_boxes, max_tests=max_tests)
+    first = result.parameters[0].name if result.parameters else None
+    shown.finish(f"{len(result.parameters)} parameters ranked"
+                 + (f", most critical {first}" if first else ""))
     if as_json:
         _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
     else:
@@ -314,32 +368,52 @@ def rank_command(case: str, max_seconds: float, max_boxes: int, max_tests: int, 
 @click.option("--seed", type=int, default=0, show_default=True, help="Random seed.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 def yield_command(case: str, draws: int, seed: int, as_json: bool) -> None:
-    """Monte Carlo yield: the fraction of random builds that are stable."""
+    """Monte Carlo yield: the fraction of random builds that are stable.
+
+    Exit codes: 0 estimated (whatever the yield), 2 bad input.
+    """
     from .analysis.montecarlo import estimate_yield
-    from .model.case import load_case
     from .render.text import render_yield
 
-    loaded = load_case(case)
+    loaded = _load(case)
+    shown = _progress("yield", draws, "draw")
 
-    def progress(done: int, total: int) -> None:
-        width = 30
-        filled = int(width * done / total)
-        click.echo(f"\ryield: [{'#' * filled}{'.' * (width - filled)}] {done}/{total}", err=True,
-                   nl=done >= total)
+    def progress(done: int, _total: int) -> None:
+        shown.reach(done)
 
     result = estimate_yield(loaded, draws, seed, progress=progress)
+    shown.finish(f"{result.fraction:.2%} stable")
     if as_json:
         _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
     else:
         click.echo(render_yield(loaded, result))
 
 
-def _stage_printer(line: str) -> None:
-    click.echo(line, err=True)
+class _Stages:
+    """The stages of a report on stderr: on a terminal beside the live decision counter of
+    :class:`~robust.render.progress.Progress`; elsewhere one line as each stage starts (a
+    report runs for many seconds, and a log or a supervising program learns from these lines
+    that the analysis has begun)."""
+
+    def __init__(self, label: str) -> None:
+        self.lines: list[str] = []
+        self.shown = _progress(label, None, "decision")
+
+    def __call__(self, line: str) -> None:
+        self.lines.append(line)
+        if self.shown.live:
+            self.shown.restart(line, brackets=line.startswith("margin"))
+        else:
+            _say(line)
+
+    def finish(self) -> None:
+        if self.shown.live:
+            self.shown.finish("; ".join(self.lines))
 
 
 def _summary_lines(analysis, files) -> list[str]:
     """The short summary ``robust report`` and ``robust demo`` print."""
+    from .exact.numbers import approx_text
     from .render.content import outcome
 
     check = analysis.check
@@ -390,18 +464,22 @@ def report_command(case: str, directory: str, max_boxes: int, search_boxes: int,
                    max_seconds: float, draws: int, seed: int, as_json: bool) -> None:
     """Write the sign-off report of CASE into a directory (HTML, Markdown, JSON).
 
-    Exit code 0 when the report was written, whatever it concludes; 2: bad input.
+    Exit codes: 0 the report was written (whatever it concludes), 2 bad input or an
+    unusable output directory.
     """
+    from .analysis.progress import listening
     from .analysis.signoff import analyse
-    from .model.case import load_case
     from .render.data import result_data
     from .render.writer import check_directory, write_report
 
     check_directory(directory)
-    loaded = load_case(case)
-    analysis = analyse(loaded, max_seconds=max_seconds, max_boxes=max_boxes, search_boxes=search_boxes,
-                       search_tests=search_tests, yield_draws=draws, seed=seed, progress=_stage_printer)
-    files = write_report(analysis, directory, progress=_stage_printer)
+    loaded = _load(case)
+    stages = _Stages("report")
+    with listening(stages.shown.listen):
+        analysis = analyse(loaded, max_seconds=max_seconds, max_boxes=max_boxes, search_boxes=search_boxes,
+                           search_tests=search_tests, yield_draws=draws, seed=seed, progress=stages)
+        files = write_report(analysis, directory, progress=stages)
+    stages.finish()
     if as_json:
         _emit_json(result_data(analysis))
     else:
@@ -414,17 +492,24 @@ def report_command(case: str, directory: str, max_boxes: int, search_boxes: int,
 @main.command("demo")
 @click.option("-o", "--output", "directory", default="robust-demo-report", show_default=True,
               type=click.Path(path_type=str), help="Directory for the demo report.")
-def demo_command(directory: str) -> None:
+@click.option("--json", "as_json", is_flag=True,
+              help="Print the result as one JSON document (the report's result.json).")
+def demo_command(directory: str, as_json: bool) -> None:
     """Analyse the built-in demo case (a DC-motor servo) and write its report.
 
     The case file is copied beside the report as case.toml, to read and re-run.
+
+    Exit codes: 0 the report was written, 2 bad input (an unusable output directory).
     """
     import dataclasses
     from importlib import resources
     from pathlib import Path
 
+    from .analysis.progress import listening
     from .analysis.signoff import analyse
     from .model.case import load_case
+    from .render.content import rerun_command
+    from .render.data import result_data
     from .render.writer import check_directory, write_report
 
     source = resources.files("robust") / "data" / "demo.toml"
@@ -434,9 +519,13 @@ def demo_command(directory: str) -> None:
         loaded = load_case(path)
     # the report names the copy beside it, which holds the same bytes (same SHA-256)
     loaded = dataclasses.replace(loaded, path=str(Path(target) / "case.toml"))
-    analysis = analyse(loaded, yield_draws=20_000, seed=0, progress=_stage_printer)
-    files = write_report(analysis, target, extra_files={"case.toml": text}, progress=_stage_printer)
+    stages = _Stages("demo")
+    with listening(stages.shown.listen):
+        analysis = analyse(loaded, yield_draws=20_000, seed=0, progress=stages)
+        files = write_report(analysis, target, extra_files={"case.toml": text}, progress=stages)
+    stages.finish()
+    if as_json:
+        _emit_json(result_data(analysis))
+        return
     click.echo("\n".join(_summary_lines(analysis, files)))
-    from .render.content import rerun_command
-
     click.echo("Re-run: " + rerun_command(analysis, str(Path(target) / "case.toml")))

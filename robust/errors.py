@@ -7,13 +7,40 @@ its one-line message in ``__str__``; the CLI prints that line and exits with ``e
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+
 __all__ = [
     "BudgetError",
     "CaseError",
     "FormulaError",
     "InputError",
     "RobustError",
+    "did_you_mean",
 ]
+
+
+def did_you_mean(word: str, choices: Iterable[str]) -> str:
+    """`` (did you mean X?)`` for the closest of ``choices`` to a mistyped ``word``, else "".
+
+    A choice that differs only in case wins; otherwise the nearest by difflib's ratio, when
+    close enough (0.6, difflib's own default) to be the likely intent.
+
+    Examples
+    --------
+    >>> did_you_mean("Rff", ["Rf", "C1"])
+    ' (did you mean Rf?)'
+    >>> did_you_mean("zeta", ["Rf", "C1"])
+    ''
+    """
+    import difflib
+
+    options = [c for c in choices if c != word]
+    same = [c for c in options if c.lower() == word.lower()]
+    close = same or difflib.get_close_matches(word, options, n=1)
+    if not close:
+        lowered = {c.lower(): c for c in options}
+        close = [lowered[c] for c in difflib.get_close_matches(word.lower(), lowered, n=1)]
+    return f" (did you mean {close[0]}?)" if close else ""
 
 
 class RobustError(Exception):

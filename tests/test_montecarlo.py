@@ -279,3 +279,19 @@ def test_yield_agrees_with_check_at_any_scale(lam, mult, stable):
     result = estimate_yield(case, n=300, seed=1)
     assert result.stable == (300 if stable else 0)
     assert check(case, max_seconds=30).verdict == ("stable" if stable else "unstable")
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.integers(1, 10**6), st.data(), st.sampled_from([0.9, 0.95, 0.99]))
+def test_clopper_pearson_without_scipy_matches_scipy(trials, data, confidence):
+    """Our beta-quantile interval equals scipy.stats.binomtest's exact interval to 1e-9
+    (Virtanen et al., "SciPy 1.0", Nature Methods 17, 2020)."""
+    from scipy import stats
+
+    from robust.analysis.binomial import clopper_pearson
+
+    successes = data.draw(st.integers(0, trials))
+    low, high = clopper_pearson(successes, trials, confidence)
+    ci = stats.binomtest(successes, trials).proportion_ci(confidence_level=confidence, method="exact")
+    assert low == pytest.approx(ci.low, rel=1e-9, abs=1e-300)
+    assert high == pytest.approx(ci.high, rel=1e-9)

@@ -17,6 +17,7 @@ from fractions import Fraction
 from ..exact.numbers import format_fraction, short_between, to_float
 from ..model.family import Box, UncertainPolynomial
 from .outcomes import Verdict, untestable
+from .progress import tell
 from .verdict import Witness, decide
 
 __all__ = ["Bracket", "Tester", "Work", "bisect_margin", "float_down", "float_up", "just_below",
@@ -108,6 +109,7 @@ def scaled_tester(family: UncertainPolynomial, box_of: Callable[[Fraction], Box]
         res = decide(family, box, max_seconds=max(work.deadline - time.perf_counter(), 0.01),
                      max_boxes=max_boxes)
         work.clock_fired |= res.safety_stop
+        tell("tested", scale=rho, verdict=res.verdict)  # progress for the command line only
         return res.verdict, res.witness
 
     return test

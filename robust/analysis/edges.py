@@ -25,13 +25,9 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 
-import sympy as sp
-
 from ..exact.routh import is_hurwitz
 
 __all__ = ["SegmentResult", "box_edges", "check_segment"]
-
-_L = sp.Symbol("l")
 
 
 @dataclass(frozen=True, slots=True)
@@ -60,7 +56,10 @@ def check_segment(p0: Sequence[Fraction], p1: Sequence[Fraction]) -> SegmentResu
     for name, coeffs in lam_polys.items():
         if _positive_on_unit_interval(coeffs):
             continue  # certified: no root in [0, 1]
-        factors[name] = sp.Poly([sp.Rational(c.numerator, c.denominator) for c in reversed(coeffs)], _L)
+        import sympy as sp  # only where the cheap certificate fails: a check need not load it
+
+        factors[name] = sp.Poly([sp.Rational(c.numerator, c.denominator) for c in reversed(coeffs)],
+                                sp.Symbol("l"))
     live = {}
     for name, poly in factors.items():
         if poly.is_zero:

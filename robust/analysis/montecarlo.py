@@ -27,10 +27,10 @@ from dataclasses import dataclass
 from fractions import Fraction
 
 import numpy as np
-from scipy import stats
 
 from ..exact.numbers import binary_exponent, format_fraction, json_float, to_float
 from ..exact.routh import is_hurwitz
+from .binomial import clopper_pearson
 
 __all__ = ["YieldResult", "draw_parameters", "estimate_yield", "float_routh_screen"]
 
@@ -162,14 +162,39 @@ def _float_form(case, scales: np.ndarray) -> _FloatForm:
     return _FloatForm(powers, weights, scale, degrees, terms, lost)
 
 
+def _monomials(powers: np.ndarray, mantissas: np.ndarray) -> np.ndarray:
+    """(N, T) values of the T monomials (rows of ``powers``) at each row of ``mantissas``.
+
+    Each parameter's powers are tabulated once by repeated multiplication (one product per
+    power, contiguous columns), and each monomial is the product of its parameters'
+    entries: no (N, T, k) power broadcast. A monomial of degree d carries at most d
+    roundings, within the (degree + 1) eps that the error bound allows for.
+    """
+    count = mantissas.shape[0]
+    out = np.empty((powers.shape[0], count))
+    columns = [np.ascontiguousarray(mantissas[:, i]) for i in range(mantissas.shape[1])]
+    tables: list[list[np.ndarray]] = []
+    for i, column in enumerate(columns):
+        table = [np.ones(count), column]
+        for _ in range(2, int(powers[:, i].max(initial=0)) + 1):
+            table.append(table[-1] * column)
+        tables.append(table)
+    for t, exponents in enumerate(powers.astype(int)):
+        used = [tables[i][e] for i, e in enumerate(exponents) if e]
+        if not used:
+            out[t] = 1.0
+            continue
+        np.copyto(out[t], used[0])
+        for factor in used[1:]:
+            out[t] *= factor
+    return out.T
+
+
 def _coefficients(form: _FloatForm, mantissas: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """(mantissas of a_n .. a_0, their relative error bound, rows whose monomials cannot
     underflow); a row is exact zero where its bound is 0."""
     with np.errstate(all="ignore"):
-        if form.powers.shape[1] == 0:
-            monomials = np.ones((mantissas.shape[0], form.powers.shape[0]))
-        else:
-            monomials = np.prod(mantissas[:, None, :] ** form.powers[None, :, :], axis=2)
+        monomials = _monomials(form.powers, mantissas)
         values = monomials @ form.weights.T
         if (mantissas >= 0).all() and (form.weights >= 0).all():
             sizes = values  # no term can cancel another
@@ -230,29 +255,34 @@ def float_routh_screen(coefficients: np.ndarray, safety: float = 1e6,
         return stable, clear & (relative < 0.5)  # the signs alone decide
     # a coefficient that vanished (or went subnormal) in the balancing is not the row's own
     clear &= ~((c != 0) & (np.abs(balanced) < _TINY)).any(axis=1)
-    c = balanced
     eps = _EPS * safety
     cols = n // 2 + 1
-    a = np.zeros((count, cols))
-    b = np.zeros((count, cols))
-    a[:, : len(range(0, width, 2))] = c[:, 0::2]
-    b[:, : len(range(1, width, 2))] = c[:, 1::2]
+    # the two top rows of the array as lists of contiguous (N,) columns (column slices of an
+    # (N, n + 1) array are strided, and the recurrence below reads them many times)
+    zero = np.zeros(count)
+    columns = [np.ascontiguousarray(balanced[:, j]) for j in range(width)]
+    a = columns[0::2] + [zero] * (cols - len(columns[0::2]))
+    b = columns[1::2] + [zero] * (cols - len(columns[1::2]))
     # errors in units of eps: the coefficients' own bound, then the recurrence's
-    a_mag, b_mag = np.abs(a) * (relative / _EPS)[:, None], np.abs(b) * (relative / _EPS)[:, None]
+    units = relative / _EPS
+    a_mag = [np.abs(x) * units for x in a]
+    b_mag = [np.abs(x) * units for x in b]
     with np.errstate(all="ignore"):
         for _ in range(2, n + 1):
-            b0 = b[:, :1]
-            new = np.zeros_like(a)
-            new[:, :-1] = (b0 * a[:, 1:] - a[:, :1] * b[:, 1:]) / b0
-            mag = np.zeros_like(a)
-            # first-order error bound of a1 - a0 b1 / b0: the errors of a1, a0, b1 and of the
-            # divisor b0 (a small b0 from an earlier cancellation magnifies the last two)
-            ratio = np.abs(b[:, 1:] / b0)
-            mag[:, :-1] = 2 * a_mag[:, 1:] + ratio * a_mag[:, :1] \
-                + np.abs(a[:, :1] / b0) * (b_mag[:, 1:] + ratio * b_mag[:, :1])
-            lead = new[:, 0]
+            b0, a0, a0_mag, b0_mag = b[0], a[0], a_mag[0], b_mag[0]
+            ratio0 = np.abs(a0 / b0)
+            new, mag = [], []
+            for k in range(cols - 1):
+                new.append((b0 * a[k + 1] - a0 * b[k + 1]) / b0)
+                # first-order error bound of a1 - a0 b1 / b0: the errors of a1, a0, b1 and of
+                # the divisor b0 (a small b0 from an earlier cancellation magnifies the last two)
+                ratio = np.abs(b[k + 1] / b0)
+                mag.append(2 * a_mag[k + 1] + ratio * a0_mag + ratio0 * (b_mag[k + 1] + ratio * b0_mag))
+            new.append(zero)
+            mag.append(zero)
+            lead = new[0]
             ok = np.isfinite(lead)
-            uncertain = ~ok | (np.abs(lead) <= eps * np.maximum(mag[:, 0], 1e-300))
+            uncertain = ~ok | (np.abs(lead) <= eps * np.maximum(mag[0], 1e-300))
             clear &= ~(uncertain & stable)
             stable &= ok & (lead > 0)
             a, b = b, new
@@ -300,10 +330,9 @@ def estimate_yield(case, n: int = 100_000, seed: int = 0, confidence: float = 0.
         done += size
         if progress is not None:
             progress(done, n)
-    test = stats.binomtest(stable_total, n)
-    ci = test.proportion_ci(confidence_level=confidence, method="exact")
+    low, high = clopper_pearson(stable_total, n, confidence)
     exact = tuple((name, _exact(lo_unstable[i], scales[i]), _exact(hi_unstable[i], scales[i]))
                   for i, name in enumerate(family.names) if np.isfinite(lo_unstable[i]))
     ranges = tuple((name, to_float(lo), to_float(hi)) for name, lo, hi in exact)
-    return YieldResult(n, stable_total, seed, confidence, (float(ci.low), float(ci.high)), rechecks,
+    return YieldResult(n, stable_total, seed, confidence, (low, high), rechecks,
                        ranges, time.perf_counter() - started, exact)

@@ -37,6 +37,7 @@ from ..exact.routh import RootCounts, is_hurwitz, routh_table
 from ..model.family import Box, UncertainPolynomial
 from .edges import box_edges, check_segment
 from .outcomes import Verdict
+from .progress import tell
 from .search import batch_worst_angle, search_witness
 from .subbox import Conditions, hurwitz_conditions, try_box
 
@@ -383,6 +384,7 @@ def decide(
     sub_box_test = sub_box_test or SUB_BOX_TEST
     if sub_box_test not in ("auto", "overbound"):
         raise ValueError(f"sub_box_test must be 'auto' or 'overbound', not {sub_box_test!r}")
+    tell("decision")  # progress for whoever listens (the command line); no effect on the result
     box = box or family.box
     budget = _Budget(max_seconds, max_boxes)
     kind = family.kind

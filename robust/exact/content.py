@@ -23,13 +23,14 @@ from __future__ import annotations
 from collections.abc import Sequence
 from fractions import Fraction
 from math import lcm
-from typing import Any
-
-import sympy as sp
+from typing import TYPE_CHECKING, Any
 
 from . import intpoly
 from .numbers import mpq
 from .polynomials import MultiPoly
+
+if TYPE_CHECKING:
+    import sympy as sp
 
 __all__ = ["common_factor", "divide"]
 
@@ -71,6 +72,8 @@ def _excluded(polys: Sequence[MultiPoly], i: int) -> bool:
 
 
 def _to_sympy(poly: MultiPoly, gens: Sequence[sp.Symbol]) -> sp.Poly:
+    import sympy as sp  # the rare fallback: not loaded when the cheap proof settles it
+
     mapping = {e: sp.QQ(int(c.numerator), int(c.denominator))  # type: ignore[attr-defined]
                for e, c in poly.terms}
     return sp.Poly.from_dict(mapping, *gens, domain=sp.QQ)
@@ -89,6 +92,8 @@ def common_factor(polys: Sequence[MultiPoly]) -> MultiPoly | None:
     shared = frozenset.intersection(*(p.variables() for p in nonzero))
     if all(_excluded(nonzero, i) for i in sorted(shared)):
         return None
+    import sympy as sp
+
     gens = sp.symbols(f"x0:{nonzero[0].nvars}")
     g = None
     for p in sorted(nonzero, key=lambda q: len(q.terms)):
@@ -101,6 +106,8 @@ def common_factor(polys: Sequence[MultiPoly]) -> MultiPoly | None:
 
 def divide(poly: MultiPoly, factor: MultiPoly) -> MultiPoly:
     """poly / factor, when factor divides poly exactly."""
+    import sympy as sp
+
     gens = sp.symbols(f"x0:{poly.nvars}")
     quotient = _to_sympy(poly, gens).exquo(_to_sympy(factor, gens))
     return _from_sympy(quotient, poly.nvars)

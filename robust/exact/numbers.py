@@ -117,13 +117,44 @@ def parse_number(text: str, what: str = "number", suffixes: bool = True) -> Frac
         scale, raw = ENGINEERING_SUFFIXES[raw[-1]], raw[:-1]
     match = _NUMBER.fullmatch(raw)
     if not match:
-        raise InputError(what, "not a number", expected, text)
+        raise InputError(what, "not a number", _number_hint(text.strip(), suffixes) or expected, text)
     mantissa, _, exponent = raw.replace("_", "").lower().partition("e")
     digits = exponent.lstrip("+-").lstrip("0")
     if len(digits) > 3 or (digits and int(digits) > _MAX_EXPONENT):
         raise InputError(what, "decimal exponent out of range", f"|exponent| <= {_MAX_EXPONENT}", text)
     value = _decimal(mantissa) * (Fraction(10) ** int(exponent or 0))
     return value * scale
+
+
+#: Suffixes written in the wrong case, and what to write instead.
+_WRONG_CASE = {"K": ("k", "kilo is a lowercase k"), "U": ("u", "micro is a lowercase u"),
+               "N": ("n", "nano is a lowercase n"), "P": ("p", "pico is a lowercase p"),
+               "g": ("G", "giga is an upper-case G"), "MEG": ("M", "mega is an upper-case M"),
+               "meg": ("M", "mega is an upper-case M"), "Meg": ("M", "mega is an upper-case M")}
+
+
+def _number_hint(raw: str, suffixes: bool) -> str:
+    """What to write instead of ``raw`` when it is a number followed by a wrong-case suffix
+    or by a unit ("22K", "10kOhm", "470 nF"); "" when it is not that."""
+    lead = _NUMBER.match(raw)
+    if not lead or not lead.group():
+        return ""
+    number, rest = lead.group(), raw[lead.end():].strip()
+    if not rest or not suffixes:
+        return ""
+    if rest in _WRONG_CASE:
+        right, why = _WRONG_CASE[rest]
+        return f'"{number}{right}" ({why})'
+    suffix = rest[0] if rest[0] in ENGINEERING_SUFFIXES and len(rest) > 1 else ""
+    if suffix == "M" and rest[:3].lower() == "meg":
+        suffix = ""  # "Meg" alone is handled above; "MegOhm" is not a unit we can split
+    unit = rest[len(suffix):].strip()
+    if suffix == "" and rest[0] in _WRONG_CASE and len(rest) > 1 and rest[1:].strip().isalpha():
+        right, why = _WRONG_CASE[rest[0]]
+        return f'"{number}{right}" with the unit given apart, as unit = "{rest[1:].strip()}" ({why})'
+    if unit and unit.lower() != "e" and all(ch.isalpha() or ch in "/·*^-23" for ch in unit):
+        return f'the number alone, "{number}{suffix}", with the unit given apart, as unit = "{unit}"'
+    return ""
 
 
 def _decimal(text: str) -> Fraction:

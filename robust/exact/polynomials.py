@@ -17,10 +17,12 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 from itertools import product
-
-import numpy as np
+from typing import TYPE_CHECKING
 
 from .numbers import format_fraction, from_mpq, mpq, to_float, to_mpq
+
+if TYPE_CHECKING:
+    import numpy as np
 
 __all__ = ["Bound", "MultiPoly", "interval_power"]
 
@@ -144,6 +146,8 @@ class MultiPoly:
 
     def evaluate_many(self, points: np.ndarray) -> np.ndarray:
         """Float values at many points (rows of ``points``): for screening, never for verdicts."""
+        import numpy as np  # here, not at import: routh and the parser need no numpy
+
         out = np.zeros(points.shape[0])
         for e, c in self.terms:
             term = np.full(points.shape[0], to_float(c))

@@ -17,9 +17,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from pathlib import Path
 
-import sympy as sp
-
-from ..errors import CaseError, FormulaError, InputError
+from ..errors import CaseError, FormulaError, InputError, did_you_mean
 from ..exact import sparse
 from ..exact.numbers import approx_text, parse_number, to_fraction
 from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, new_work, parse_formula
@@ -83,6 +81,9 @@ class Case:
     family: UncertainPolynomial
     requirements: Requirements
     sha256: str
+    #: Remarks on how the file was read, said once on stderr by the command line (e.g. what a
+    #: large plain-number tolerance means); never part of a result.
+    notes: tuple[str, ...] = ()
 
     @property
     def names(self) -> tuple[str, ...]:
@@ -100,6 +101,7 @@ class _Reader:
     def __init__(self, path: str, text: str):
         self.path = path
         self.lines = text.splitlines()
+        self.notes: list[str] = []
 
     def line_of(self, section: str, key: str | None = None) -> int | None:
         """Best-effort line number of ``[section]`` or of ``key`` inside it."""
@@ -112,8 +114,8 @@ class _Reader:
         if start is None:
             if key is None:
                 return None
-            # a top-level key, or a dotted key at top level
-            pattern = re.compile(r"\s*" + re.escape(key) + r"\s*=")
+            # a top-level key, a dotted key at top level, or a table of that name
+            pattern = re.compile(r"\s*(?:" + re.escape(key) + r"\s*=|\[\s*" + re.escape(key) + r"\s*[\].])")
             for i, line in enumerate(self.lines):
                 if pattern.match(line):
                     return i + 1
@@ -175,6 +177,24 @@ def _tolerance(reader: _Reader, section: str, value: object,
             raise reader.error(section, "tolerance", "malformed tolerance", expected, value) from None
         if dev < 0:
             raise reader.error(section, "tolerance", "a tolerance cannot be negative", expected, value)
+        # a bare number ("5", 5) may be a percentage without its sign; "20m" is absolute on purpose
+        bare = not isinstance(value, str) or body[-1:].isdigit()
+        if bare and nominal != 0 and dev > abs(nominal):  # the range crosses zero: the sign flips
+            # "tolerance = 5" on a 470 nF part: almost surely "5%" was meant, not +-5 F
+            share = approx_text(100 * dev / abs(nominal), 3)
+            raise reader.error(
+                section, "tolerance",
+                f"a plain number is an absolute tolerance: +-{approx_text(dev)} around the nominal "
+                f"{approx_text(nominal)} is {share} % and crosses zero",
+                f'a percentage written as text, such as tolerance = "{body}%", a smaller '
+                "absolute tolerance, or range = [low, high] for a range through zero", value)
+        if bare and nominal != 0 and dev >= abs(nominal) / 5:
+            line = reader.line_of(section, "tolerance")
+            where = f"{reader.path}:{line}" if line else reader.path
+            reader.notes.append(
+                f"{where}: {section}.tolerance = {text} is absolute: +-{approx_text(dev)} around "
+                f"{approx_text(nominal)}, {approx_text(100 * dev / abs(nominal), 3)} % of the nominal; "
+                f'a percentage is written as text, e.g. tolerance = "{body}%"')
     return dev, dev, text
 
 
@@ -189,7 +209,8 @@ def _parameter(reader: _Reader, name: str, table: object) -> Parameter:
     allowed = {"nominal", "tolerance", "range", "unit", "note", "distribution", "limits"}
     for key in table:
         if key not in allowed:
-            raise reader.error(section, key, "unknown key", ", ".join(sorted(allowed)))
+            raise reader.error(section, key, "unknown key" + did_you_mean(key, allowed),
+                               ", ".join(sorted(allowed)))
     has_tol, has_range = "tolerance" in table, "range" in table
     if has_tol == has_range:
         raise reader.error(section, None,
@@ -280,6 +301,18 @@ def _formula(reader: _Reader, section: str, key: str, text: object, names, varia
                         error.expected, None, line) from None
 
 
+def _top_level_hint(key: str, value: object, allowed: set[str]) -> str:
+    """What an unknown top-level key was probably meant to be, as " (did you mean ...?)"."""
+    if key in ("expression", "coefficients", "loop"):  # a form written outside [polynomial]
+        return f" (did you mean [polynomial.{key}]?)" if key == "loop" \
+            else f" (did you mean {key} = ... under [polynomial]?)"
+    if key in ("margin", "decay_rate"):
+        return f" (did you mean {key} = ... under [requirements]?)"
+    if isinstance(value, dict) and {"nominal", "tolerance", "range"} & set(value):
+        return f" (did you mean [parameters.{key}]?)"  # a part declared without its section
+    return did_you_mean(key, allowed)
+
+
 def parse_case(text: str, path: str = "<case>") -> Case:
     """Read a case from TOML text. See :func:`load_case`."""
     reader = _Reader(path, text)
@@ -298,7 +331,8 @@ def parse_case(text: str, path: str = "<case>") -> Case:
     allowed = {"title", "summary", "variable", "parameters", "polynomial", "requirements"}
     for key in data:
         if key not in allowed:
-            raise reader.error("", key, "unknown top-level key", ", ".join(sorted(allowed)))
+            raise reader.error("", key, "unknown top-level key" + _top_level_hint(key, data[key], allowed),
+                               ", ".join(sorted(allowed)))
     title = data.get("title", "")
     if not isinstance(title, str) or not title.strip():
         raise reader.error("", "title", "missing or empty title", 'title = "one line"')
@@ -333,7 +367,8 @@ def parse_case(text: str, path: str = "<case>") -> Case:
     forms = [k for k in ("expression", "coefficients", "loop") if k in poly]
     for key in poly:
         if key not in ("expression", "coefficients", "loop"):
-            raise reader.error("polynomial", key, "unknown key", "expression, coefficients or loop")
+            raise reader.error("polynomial", key, "unknown key" + did_you_mean(
+                key, ("expression", "coefficients", "loop")), "expression, coefficients or loop")
     if len(forms) != 1:
         raise reader.error("polynomial", None,
                            "give exactly one of expression, coefficients and loop" if forms
@@ -394,14 +429,14 @@ def parse_case(text: str, path: str = "<case>") -> Case:
     slots = 1 + len(names)
     try:
         family = build_family(sparse.to_multipoly(numerator, slots), sparse.to_multipoly(denominator, slots),
-                              sp.Symbol(variable), names, box, nominal,
+                              variable, names, box, nominal,
                               limits=tuple(p.limits for p in parameters))
     except InputError as error:
         raise reader.error("polynomial", form, error.problem, error.expected) from None
     requirements = _requirements(reader, data.get("requirements", {}))
     return Case(path, title.strip(), summary.strip(), variable, parameters, form,
                 tuple(formulas), family, requirements,
-                hashlib.sha256(text.encode()).hexdigest())
+                hashlib.sha256(text.encode()).hexdigest(), tuple(reader.notes))
 
 
 def _check_total_length(reader: _Reader, form: str, value: object) -> None:
@@ -419,7 +454,8 @@ def _requirements(reader: _Reader, table: object) -> Requirements:
     out = {}
     for key in table:
         if key not in ("margin", "decay_rate"):
-            raise reader.error("requirements", key, "unknown requirement", "margin, decay_rate")
+            raise reader.error("requirements", key, "unknown requirement" + did_you_mean(
+                key, ("margin", "decay_rate")), "margin, decay_rate")
         value = _number(reader, "requirements", key, table[key])
         if value < 0 or (key == "margin" and value == 0):
             expected = "a positive number" if key == "margin" else "a number >= 0"

@@ -24,7 +24,7 @@ from fractions import Fraction
 from types import MappingProxyType
 from typing import NamedTuple
 
-from ..errors import FormulaError, InputError
+from ..errors import FormulaError, InputError, did_you_mean
 from ..exact import sparse
 from ..exact.numbers import parse_number, to_mpq
 
@@ -404,7 +404,9 @@ class _Parser:
                 expected = "a declared parameter" + (f" ({hint})" if hint else "")
                 if self.variable:
                     expected += f" or the variable {self.variable}"
-                raise self.fail(f"unknown name {token.text!r}", expected, token)
+                choices = [*known, *([self.variable] if self.variable else [])]
+                raise self.fail(f"unknown name {token.text!r}{did_you_mean(token.text, choices)}",
+                                expected, token)
             if token.text != self.variable:
                 self.used.add(token.text)
             slot = self.slots[token.text]

@@ -13,14 +13,17 @@ import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
+from typing import TYPE_CHECKING
 
 import numpy as np
-import sympy as sp
 
 from ..errors import InputError
 from ..exact.numbers import to_float
 from ..exact.content import common_factor, divide
 from ..exact.polynomials import Bound, MultiPoly, as_intervals
+
+if TYPE_CHECKING:  # sympy is loaded only by the functions that take sympy input
+    import sympy as sp
 
 __all__ = ["Box", "UncertainPolynomial", "build_family", "classify", "shifted_family", "sign_over_box"]
 
@@ -261,6 +264,8 @@ def classify(coefficients: Sequence[MultiPoly]) -> str:
 def _to_multipoly(expr: sp.Expr, symbols: Sequence[sp.Symbol]) -> MultiPoly:
     """A sympy polynomial expression in ``symbols`` as a MultiPoly (for sympy input only:
     case files are expanded by :mod:`robust.exact.sparse`, never by sympy)."""
+    import sympy as sp
+
     if not symbols:
         value = sp.Rational(expr)
         return MultiPoly.constant(0, Fraction(int(value.p), int(value.q)))
@@ -300,6 +305,8 @@ def _factor_text(factor: MultiPoly, names: Sequence[str]) -> str:
     """A cleared factor as sympy writes it (short ones; long ones in our own notation)."""
     if len(factor.terms) > 200:
         return factor.to_text(names)
+    import sympy as sp
+
     symbols = [sp.Symbol(n) for n in names]
     terms = []
     for e, c in factor.terms:
@@ -334,6 +341,8 @@ def build_family(
         box, or the polynomial does not depend on the variable.
     """
     if not isinstance(numerator, MultiPoly) or not isinstance(denominator, MultiPoly):
+        import sympy as sp
+
         gens = [variable, *(sp.Symbol(n) for n in names)]
         numerator = _to_multipoly(sp.expand(numerator), gens)
         denominator = _to_multipoly(sp.expand(denominator), gens)

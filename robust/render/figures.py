@@ -176,7 +176,7 @@ def value_set_picture(case, omegas: Sequence[float], draws: np.ndarray) -> Pictu
                         zorder=6)
         verdict = "origin INSIDE the rectangle" if entry["origin_inside"] else "origin excluded"
         where = "" if inside else f", at ({ou:.2g}, {ov:.2g})"
-        ax.set_title(f"ω = {entry['omega']:.3g}\n{verdict}{where}", fontsize=8.5, linespacing=1.3)
+        ax.set_title(f"ω = {entry['omega']:.3g} rad/s\n{verdict}{where}", fontsize=8.5, linespacing=1.3)
         ax.set_xlim(-_LIMIT, _LIMIT)
         ax.set_ylim(-_LIMIT, _LIMIT)
         ax.set_aspect("equal")
@@ -184,8 +184,8 @@ def value_set_picture(case, omegas: Sequence[float], draws: np.ndarray) -> Pictu
         ax.set_yticks([-2, -1, 0, 1, 2])
         ax.axhline(0, color="#bbbbbb", linewidth=0.5, zorder=0)
         ax.axvline(0, color="#bbbbbb", linewidth=0.5, zorder=0)
-        ax.set_xlabel("Re p(jω), scaled", fontsize=8)
-        ax.set_ylabel("Im p(jω), scaled", fontsize=8)
+        ax.set_xlabel("Re p(jω), scaled (no unit)", fontsize=8)
+        ax.set_ylabel("Im p(jω), scaled (no unit)", fontsize=8)
     handles, labels = axes.flat[0].get_legend_handles_labels()
     from matplotlib.patches import Patch
 
@@ -203,7 +203,7 @@ def value_set_picture(case, omegas: Sequence[float], draws: np.ndarray) -> Pictu
     labels = [labels[i] for i in keep] + ["origin (zero exclusion asks: outside every rectangle)",
                                           "direction of the origin when off the panel"]
     figure.legend(handles, labels, loc="outside lower center", ncol=2, fontsize=8)
-    alt = ("Value set at " + ", ".join(f"{d['omega']:.3g}" for d in data) + ": "
+    alt = ("Value set at " + ", ".join(f"{d['omega']:.3g}" for d in data) + " rad/s: "
            + "; ".join(f"ω = {d['omega']:.3g} origin {'inside' if d['origin_inside'] else 'excluded'}"
                        for d in data))
     return Picture("value_set", _png(figure), alt)
@@ -255,8 +255,10 @@ def root_cloud_picture(case, draws: np.ndarray, witness=None) -> Picture:
     else:
         ax.set_xlim(low - pad, high + pad)
     ax.grid(True, color="#dddddd", linewidth=0.5)
-    ax.set_xlabel("Re s")
-    ax.set_ylabel("Im s")
+    var = getattr(case, "variable", "s")
+    # the Laplace variable of a time in seconds: Re s in 1/s, Im s (a frequency) in rad/s
+    ax.set_xlabel(f"Re {var} (1/s)" if var == "s" else f"Re {var}")
+    ax.set_ylabel(f"Im {var} (rad/s)" if var == "s" else f"Im {var}")
     if spread > 30:
         _decade_ticks(ax.xaxis, ax.get_xlim(), width)
         _decade_ticks(ax.yaxis, ax.get_ylim(), width)

@@ -11,9 +11,17 @@ from .fmt import witness_roots
 __all__ = ["render_table", "roots_sentence"]
 
 
-def roots_sentence(table: RouthTable) -> str:
-    """One line: where the roots are and what that means."""
+def roots_sentence(table: RouthTable, unshifted=None) -> str:
+    """One line: where the roots are and what that means.
+
+    With a shift, the conclusion speaks of relative stability (every root left of the line
+    Re(s) = -sigma, a decay rate above sigma); ``unshifted`` (the root counts of the
+    polynomial itself, when known) then says whether a polynomial that misses the line is
+    still stable, only slower than asked.
+    """
     r = table.roots
+    if table.shift:
+        return _relative_sentence(table, unshifted)
     line = "the line Re(s) = " + format_fraction(-table.shift) if table.shift else "the imaginary axis"
     where = "right of" if table.shift else "in the open right half-plane"
     counts = (
@@ -32,7 +40,32 @@ def roots_sentence(table: RouthTable) -> str:
     return f"{counts}.\nConclusion: {verdict}."
 
 
-def render_table(table: RouthTable) -> str:
+def _relative_sentence(table: RouthTable, unshifted) -> str:
+    """Counts and conclusion relative to the line Re(s) = -sigma."""
+    r = table.roots
+    sigma = format_fraction(table.shift)
+    line = "the line Re(s) = " + format_fraction(-table.shift)
+    counts = f"{r.open_right} root(s) right of {line}, {r.imaginary_axis} on it, {r.open_left} left of it"
+    if table.is_hurwitz:
+        verdict = (f"relative stability met: every root lies left of {line} "
+                   f"(decay rate above {sigma})")
+    else:
+        verdict = (f"relative stability not met: {r.open_right + r.imaginary_axis} root(s) "
+                   f"on or right of {line}")
+        if unshifted is not None:
+            if unshifted.open_right == 0 and unshifted.imaginary_axis == 0:
+                verdict += ("; the polynomial itself is stable (every root in the open left "
+                            "half-plane), only slower than asked")
+            elif unshifted.open_right:
+                verdict += (f"; the polynomial itself is unstable ({unshifted.open_right} root(s) "
+                            "in the open right half-plane)")
+            else:
+                verdict += ("; the polynomial itself is not asymptotically stable (roots on the "
+                            "imaginary axis)")
+    return f"{counts}.\nConclusion: {verdict}."
+
+
+def render_table(table: RouthTable, unshifted=None) -> str:
     """The Routh array with powers down the left, special rows marked, then the counts."""
     rows = table.rows
     cells = [[format_entry(e) for e in row.entries] for row in rows]
@@ -64,7 +97,7 @@ def render_table(table: RouthTable) -> str:
     lines.append(f"first-column signs{shown}: {signs}   sign changes: {table.sign_changes}")
     if table.count_note:
         lines.append("note: " + table.count_note)
-    lines.append(roots_sentence(table))
+    lines.append(roots_sentence(table, unshifted))
     return "\n".join(lines)
 
 
@@ -77,6 +110,13 @@ def _fmt(value: Fraction) -> str:
     return text
 
 
+def _dependence_words(kind: str) -> str:
+    """How the coefficients depend on the parameters, in words ("affine dependence")."""
+    if kind == "independent":
+        return "independent coefficients (each parameter in one coefficient)"
+    return f"{kind} dependence"
+
+
 def _roots_line(roots) -> str:
     return (f"{roots.open_right} in the open right half-plane, {roots.imaginary_axis} on the "
             f"imaginary axis, {roots.open_left} in the open left half-plane")
@@ -86,7 +126,7 @@ def render_check(case, result) -> str:
     """The verdict of ``robust check`` for people."""
     fam = case.family
     lines = [f"Case: {case.title}   [{case.path}]",
-             f"Family: degree {fam.degree}, {len(fam.names)} parameters, {fam.kind} dependence"]
+             f"Family: degree {fam.degree}, {len(fam.names)} parameters, {_dependence_words(fam.kind)}"]
     lines.append(f"Nominal: {_roots_line(result.nominal)}")
     headline = result.verdict.headline
     lines.append(f"Verdict: {headline}")
@@ -172,7 +212,7 @@ def render_trace(case, graph) -> str:
     """Parameter -> coefficient dependencies with directions, and the coefficient bounds."""
     data, bounds = _trace(case, graph)
     lines = [f"Case: {case.title}   [{case.path}]",
-             f"Family: degree {data['degree']}, {data['family_class']} dependence", ""]
+             f"Family: degree {data['degree']}, {_dependence_words(data['family_class'])}", ""]
     for c, b in zip(data["coefficients"], bounds, strict=True):
         deps = ", ".join(f"{n} ({d})" for n, d in c["parameters"].items()) or "constant"
         lines.append(f"a{c['power']} (s^{c['power']}) = {c['formula']}")
