@@ -224,15 +224,36 @@ def _search_budget_options(default_boxes: int, default_tests: int) -> Callable[.
 _CASE = click.Path(dir_okay=True, path_type=str)
 
 
+_CERTIFICATE = click.option(
+    "--certificate", type=click.Path(dir_okay=False, path_type=str), default=None,
+    help="Also write the proof to this new JSON file (re-check it with robust verify).")
+
+
+def _write_certificate(path: str, loaded, result=None, box=None, scale=None, max_boxes: int = 20000,
+                       max_seconds: float = 600.0) -> dict:
+    """Certify and write (never over an existing file); a line on stderr says where."""
+    from .analysis.certificate import certificate_bytes, certify, digest
+    from .render.writer import write_new_file
+
+    _, data = certify(loaded, box=box, result=result, scale=scale, max_boxes=max_boxes,
+                      max_seconds=max_seconds)
+    write_new_file(path, certificate_bytes(data), "--certificate")
+    click.echo(f"certificate: {data['verdict']}, {data['summary']['pieces']} piece(s), written to {path} "
+               f"(SHA-256 {digest(data)[:16]}...); re-check with: robust verify {path}", err=True)
+    return data
+
+
 @main.command("check")
 @click.argument("case", type=_CASE)
 @_budget_options
+@_CERTIFICATE
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) -> None:
+def check_command(case: str, max_seconds: float, max_boxes: int, certificate: str | None,
+                  as_json: bool) -> None:
     """Prove CASE stable over every tolerance, or find a verified counterexample.
 
     Exit codes: 0 robustly stable (and requirements met), 1 unstable, undecided or a
-    requirement failed, 2 bad input.
+    requirement failed, 2 bad input or an unusable --certificate path.
     """
     from .analysis.outcomes import Outcome
     from .analysis.requirements import check_requirements
@@ -241,6 +262,10 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
     from .render.text import render_check, render_requirements
 
     loaded = _load(case)
+    if certificate is not None:
+        from .render.writer import check_new_file
+
+        check_new_file(certificate, "--certificate")
     shown = _progress("check", max_boxes, "box")
 
     def report(proven, boxes: int, _seconds: float) -> None:
@@ -251,15 +276,52 @@ def check_command(case: str, max_seconds: float, max_boxes: int, as_json: bool) 
     shown.finish(f"{result.verdict.value} ({result.method_text})", quiet_under=1.0)
     requirements = check_requirements(loaded, max_seconds=max_seconds) \
         if result.verdict == "stable" else ()
+    written = None
+    if certificate is not None:
+        written = _write_certificate(certificate, loaded, result, max_boxes=max_boxes,
+                                     max_seconds=max_seconds)
     if as_json:
+        extra = {} if written is None else {"certificate": {"file": certificate, **written["summary"]}}
         _emit_json({"case": case, "title": loaded.title, **result.as_dict(),
-                    "requirements": {r.name: r.as_dict() for r in requirements}})
+                    "requirements": {r.name: r.as_dict() for r in requirements}, **extra})
     else:
         click.echo(render_check(loaded, result))
         if requirements:
             click.echo(render_requirements(requirements))
     failed = any(r.outcome is not Outcome.PASS for r in requirements)
     sys.exit(0 if result.verdict == "stable" and not failed else 1)
+
+
+@main.command("verify")
+@click.argument("certificate", type=click.Path(dir_okay=False, path_type=str))
+@click.option("--case", "case", type=_CASE, default=None,
+              help="The case file that was certified [default: the one the certificate names, "
+                   "as written or beside the certificate].")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
+def verify_command(certificate: str, case: str | None, as_json: bool) -> None:
+    """Re-check a certificate written by check, margin or report, without the search.
+
+    The checker re-derives the polynomial from the case file and confirms every piece of the
+    proof with exact arithmetic (docs/certificates.md says what a VALID certificate proves).
+
+    Exit codes: 0 VALID, 1 INVALID (the first piece that fails is named), 2 bad input.
+    """
+    from .verify import verify_file
+
+    result = verify_file(certificate, case)
+    if as_json:
+        _emit_json(result.as_dict())
+    elif result.valid:
+        click.echo(f"VALID: {result.verdict}; {result.pieces} piece(s) re-checked. "
+                   f"Proven: {result.statement}.")
+    else:
+        failed = result.failed or {}
+        where = "" if failed.get("piece") is None else f" at piece {failed['piece']}"
+        box = failed.get("box")
+        box_text = "" if not box else \
+            " (" + ", ".join(f"{n} in [{a}, {b}]" for n, (a, b) in box.items()) + ")"
+        click.echo(f"INVALID{where}: {failed.get('reason', 'no reason given')}{box_text}")
+    sys.exit(0 if result.valid else 1)
 
 
 @main.command("trace")
@@ -297,13 +359,16 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
               help="Relative bracket width asked for [default: 1e-9 interval families, 1e-6 others].")
 @_search_budget_options(1000, 48)
 @click.option("--no-decay", is_flag=True, help="Skip the decay-rate margin.")
+@click.option("--certificate", type=click.Path(dir_okay=False, path_type=str), default=None,
+              help="Also write the proof of the bracket's proven end (every tolerance scaled by it) "
+                   "to this new JSON file.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: float, max_boxes: int,
-                   max_tests: int, no_decay: bool, as_json: bool) -> None:
+                   max_tests: int, no_decay: bool, certificate: str | None, as_json: bool) -> None:
     """Robust margin rho* (how far every tolerance can grow) and the decay-rate margin.
 
     Exit codes: 0 computed (and requirements met), 1 a requirement of the case is not
-    proven met, 2 bad input.
+    proven met, 2 bad input or an unusable --certificate path.
     """
     from .analysis.margin import margin
     from .analysis.outcomes import Outcome
@@ -317,6 +382,10 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
         from .errors import InputError
 
         raise InputError("--cap", "must be positive", "a number such as 100", cap)
+    if certificate is not None:
+        from .render.writer import check_new_file
+
+        check_new_file(certificate, "--certificate")
     shown = _progress("margin", None, "decision")
     with listening(shown.listen):
         result = margin(loaded, cap=cap_value, rel_tol=rel_tol, max_seconds=max_seconds,
@@ -324,8 +393,15 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
     upper = "no failure up to the cap" if result.margin.upper is None \
         else approx_text(result.margin.upper, 6)
     shown.finish(f"rho* in [{approx_text(result.margin.lower, 6)}, {upper}]")
+    written = None
+    if certificate is not None:
+        rho = result.margin.lower
+        scaled = loaded.family.box.scaled(loaded.family.nominal, rho)
+        written = _write_certificate(certificate, loaded, box=scaled,
+                                     scale=rho, max_boxes=max_boxes, max_seconds=max_seconds)
     if as_json:
-        _emit_json({"case": case, "title": loaded.title, **result.as_dict()})
+        extra = {} if written is None else {"certificate": {"file": certificate, **written["summary"]}}
+        _emit_json({"case": case, "title": loaded.title, **result.as_dict(), **extra})
     else:
         click.echo(render_margin(loaded, result))
     # a requirement that is not proven met (failed or undecided) fails the command, as in check

@@ -108,7 +108,8 @@ def verify_file(path: str | Path, case_path: str | Path | None = None) -> Verifi
     try:
         data = json.loads(raw)
     except (ValueError, UnicodeDecodeError):
-        raise InputError(str(path), "not JSON", "a certificate written by robust check --certificate") from None
+        raise InputError(str(path), "not JSON",
+                         "a certificate written by robust check --certificate") from None
     if not isinstance(data, dict) or data.get("format") != FORMAT:
         raise InputError(str(path), "not a robust certificate (no \"format\": \"robust certificate\")",
                          "a certificate written by robust check --certificate")
@@ -139,9 +140,11 @@ def verify_certificate(data: dict, case) -> Verification:
             statement = "a parameter point inside the box whose polynomial is not Hurwitz"
         elif verdict in ("stable", "undecided"):
             pieces, opened = _check_tree(data, family, low, high, verdict)
-            statement = ("every parameter point of the box gives a Hurwitz polynomial" if verdict == "stable"
-                         else f"every parameter point outside the {opened} open piece(s) gives a "
-                         "Hurwitz polynomial")
+            where = "the box" if data.get("scale") is None else \
+                f"the box with every tolerance scaled by {data['scale']}"
+            statement = (f"every parameter point of {where} gives a Hurwitz polynomial" if verdict == "stable"
+                         else f"every parameter point of {where} outside the {opened} open piece(s) "
+                         "gives a Hurwitz polynomial")
         else:
             raise _Invalid(f"unknown verdict {verdict!r}")
     except _Invalid as invalid:
@@ -256,8 +259,8 @@ def _check_tree(data: dict, family, low, high, verdict: str) -> tuple[int, int]:
                 raise _Invalid(f"node {position} splits an unknown parameter {node['split']!r}")
             i = names.index(node["split"])
             middle = (lo[i] + hi[i]) / 2
-            upper = (lo[:i] + [middle] + lo[i + 1:], hi)
-            lower = (lo, hi[:i] + [middle] + hi[i + 1:])
+            upper = ([*lo[:i], middle, *lo[i + 1:]], hi)
+            lower = (lo, [*hi[:i], middle, *hi[i + 1:]])
             stack += [upper, lower]  # the lower half is the next subtree
             continue
         pieces += 1

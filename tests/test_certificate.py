@@ -79,7 +79,7 @@ def _piece_corners(data: dict, case):
         if "split" in node:
             i = names.index(node["split"])
             mid = (lo[i] + hi[i]) / 2
-            stack += [(lo[:i] + [mid] + lo[i + 1:], hi), (lo, hi[:i] + [mid] + hi[i + 1:])]
+            stack += [([*lo[:i], mid, *lo[i + 1:]], hi), (lo, [*hi[:i], mid, *hi[i + 1:]])]
         else:
             yield tuple(lo)
 
@@ -92,7 +92,8 @@ def test_kharitonov_pieces_are_confirmed_and_agree_with_sympy(tmp_path):
     result = decide(case.family, sub_box_test="overbound", use_edges=False, search=False)
     assert result.verdict == "stable" and result.method == "subdivision"
     data = build_certificate(case, result)
-    assert data["summary"]["by_method"] == {"kharitonov": data["summary"]["pieces"]} and data["summary"]["pieces"] > 1
+    pieces = data["summary"]["pieces"]
+    assert data["summary"]["by_method"] == {"kharitonov": pieces} and pieces > 1
     assert verify_certificate(_roundtrip(data), case).valid
     from robust.exact.polynomials import as_intervals
 
@@ -111,7 +112,7 @@ def test_affine_families_decided_by_edges_are_certified_by_a_partition(tmp_path)
     case = _write(tmp_path, case_toml(params, ["1 + u", "3 + 3*u - v", "3 + 9*u", "1 + 7*u"]))
     edges = decide(case.family, sub_box_test="overbound", search=False)
     assert edges.method == "edges" and edges.proof is None
-    result, data = certify(case, result=edges)
+    _result, data = certify(case, result=edges)
     assert data["verdict"] == "stable" and verify_certificate(_roundtrip(data), case).valid
 
 
@@ -212,3 +213,70 @@ def test_certified_cubic_families_hold_on_a_dense_grid(u, w, q, r):
             a3, a2, a1, a0 = case.family.coefficients_at((x0 + (x1 - x0) * Fraction(i, 12),
                                                           y0 + (y1 - y0) * Fraction(j, 12)))
             assert a2 > 0 and a1 > 0 and a0 > 0 and a2 * a1 > a3 * a0
+
+
+# -- the command line ----------------------------------------------------------------------------
+
+
+def test_check_writes_a_certificate_that_verify_confirms_and_tampering_fails(tmp_path, monkeypatch):
+    from click.testing import CliRunner
+
+    from robust.cli import main
+
+    monkeypatch.chdir(tmp_path)
+    case = _wide_chain(tmp_path)
+    runner = CliRunner()
+    done = runner.invoke(main, ["check", case.path, "--certificate", "proof.json"])
+    assert done.exit_code == 0, done.output
+    done = runner.invoke(main, ["verify", "proof.json"])
+    assert done.exit_code == 0 and done.stdout.startswith("VALID: stable")
+    data = json.loads((tmp_path / "proof.json").read_text())
+    assert json.loads(runner.invoke(main, ["verify", "proof.json", "--json"]).stdout) == {
+        "valid": True, "pieces": data["summary"]["pieces"], "failed": None, "verdict": "stable",
+        "statement": "every parameter point of the box gives a Hurwitz polynomial"}
+    del data["tree"][-1]
+    (tmp_path / "dropped.json").write_text(json.dumps(data))
+    done = runner.invoke(main, ["verify", "dropped.json", "--case", case.path])
+    assert done.exit_code == 1 and done.stdout.startswith("INVALID")
+    # an existing file is never overwritten, and that is known before any analysis
+    done = runner.invoke(main, ["check", case.path, "--certificate", "proof.json"])
+    assert done.exit_code == 2 and "never overwrites" in done.stderr and done.stdout == ""
+    done = runner.invoke(main, ["verify", case.path])
+    assert done.exit_code == 2 and "not JSON" in done.stderr and len(done.stderr.splitlines()) == 1
+
+
+def test_margin_certifies_the_proven_end_of_its_bracket(tmp_path, monkeypatch):
+    from click.testing import CliRunner
+
+    from robust.cli import main
+
+    monkeypatch.chdir(tmp_path)
+    case = _write(tmp_path, (Path(__file__).resolve().parent.parent / "cases" / "servo_pid.toml").read_text())
+    runner = CliRunner()
+    done = runner.invoke(main, ["margin", case.path, "--no-decay", "--certificate", "m.json", "--json"])
+    assert done.exit_code == 0, done.output
+    data = json.loads((tmp_path / "m.json").read_text())
+    lower = json.loads(done.stdout)
+    assert Fraction(data["scale"]) == Fraction(lower["margin_detail"]["lower_exact"])
+    result = verify_file(tmp_path / "m.json")
+    assert result.valid and "scaled by" in result.statement
+
+
+def test_the_report_carries_the_certificate_and_the_command_that_checks_it(tmp_path):
+    """The demo servo: its whole-box overbound fails (K4 is not Hurwitz) while the proof is
+    Bernstein's, so the failing table is shown apart, as a record, after the proof."""
+    from robust.analysis.certificate import digest
+    from robust.analysis.signoff import analyse
+    from robust.render.writer import write_report
+
+    case = load_case(Path(__file__).resolve().parent.parent / "cases" / "servo_pid.toml")
+    analysis = analyse(case, yield_draws=200, search_tests=12)
+    files = write_report(analysis, tmp_path / "report")
+    certificate = tmp_path / "report" / "certificate.json"
+    assert verify_file(certificate, case.path).valid
+    markdown = files.markdown.read_text()
+    assert digest(analysis.certificate) in markdown and "robust verify" in markdown
+    proof_at = markdown.index("The proof, written as a certificate")
+    record_at = markdown.index("For the record: the whole-box overbound (not the proof)")
+    assert proof_at < record_at < markdown.index("NOT Hurwitz")
+    assert json.loads(files.json.read_text())["proof"]["sha256"] == digest(analysis.certificate)

@@ -81,8 +81,9 @@ def build_certificate(case, result: CheckResult, scale: Fraction | None = None) 
         data["summary"] = {"pieces": 1, "by_method": {}, "open": 1, "splits": {}}
         return data
     data["stable_point"] = _point(names, proof.point)
-    data["conditions"] = [{"name": label, "fixed": {names[i]: format_fraction(v) for i, v in sorted(fixed.items())}}
-                          for label, fixed in zip(LABELS, proof.fixed, strict=False)]
+    data["conditions"] = [
+        {"name": label, "fixed": {names[i]: format_fraction(v) for i, v in sorted(fixed.items())}}
+        for label, fixed in zip(LABELS, proof.fixed, strict=False)]
     tree: list[dict[str, object]] = []
     methods: Counter[str] = Counter()
     splits: Counter[str] = Counter()

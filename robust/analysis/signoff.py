@@ -9,6 +9,7 @@ from datetime import datetime
 
 from .._version import __version__
 from ..model.case import Case
+from .certificate import certify
 from .margin import DEFAULT_MARGIN_BOXES, DEFAULT_MARGIN_TESTS, MarginResult, margin
 from .montecarlo import YieldResult, estimate_yield
 from .outcomes import Verdict
@@ -47,6 +48,8 @@ class Analysis:
     started: str
     version: str
     settings: Settings = Settings(600.0, 20000, 0)
+    #: The check's certificate (:mod:`robust.analysis.certificate`), None when not made.
+    certificate: dict | None = None
 
     @property
     def started_epoch_seconds(self) -> int:
@@ -96,6 +99,8 @@ def analyse(case: Case, *, max_seconds: float = 600.0, max_boxes: int = DEFAULT_
 
     say(f"check: deciding robust stability (budget {max_boxes} boxes)")
     verdict = check(case, max_seconds=left(), max_boxes=max_boxes, seed=seed)
+    # the proof as a partition (a result of the edge theorem is decided again without it)
+    _, proof = certify(case, result=verdict, max_boxes=max_boxes, max_seconds=left())
     requirements: tuple[RequirementCheck, ...] = ()
     if verdict.verdict == Verdict.STABLE and (case.requirements.margin is not None
                                               or case.requirements.decay_rate is not None):
@@ -110,4 +115,4 @@ def analyse(case: Case, *, max_seconds: float = 600.0, max_boxes: int = DEFAULT_
     builds = estimate_yield(case, yield_draws, seed)
     return Analysis(case, verdict, margins, requirements, ranking, builds, started, __version__,
                     Settings(float(max_seconds), int(yield_draws), int(seed), int(max_boxes),
-                             int(search_boxes), int(search_tests)))
+                             int(search_boxes), int(search_tests)), proof)

@@ -11,7 +11,7 @@ from ..exact.routh import RouthTable
 from .blocks import Cell, Code, ItemList, Paragraph, Section, Table
 from .fmt import entry_cell, exact_cell, witness_roots
 
-__all__ = ["certificate_section", "undecided_blocks", "witness_section"]
+__all__ = ["certificate_section", "proof_blocks", "undecided_blocks", "witness_section"]
 
 
 def _roots_words(counts) -> str:
@@ -52,34 +52,74 @@ def _vertex_section(vertex: KharitonovVertex, degree: int) -> Section:
     return Section(f"{vertex.label}: {words}", tuple(blocks))
 
 
-def certificate_section(result: CheckResult, degree: int) -> Section:
-    """The four Kharitonov polynomials of the overbound over the whole box, with tables."""
+_METHOD_WORDS = {"bernstein": "by Bernstein expansion of a_n, a_0 and Delta_(n-1) over the piece",
+                 "kharitonov": "by the Kharitonov polynomials of the piece's own coefficient overbound"}
+
+
+def proof_blocks(proof: dict | None, sha256: str = "", command: str = "") -> list:
+    """What the certificate holds: the partition by method, its digest, how to re-check it."""
+    if proof is None:
+        return []
+    summary = proof.get("summary", {})
+    verdict = proof.get("verdict")
+    if verdict == "unstable":
+        what = "the witness below; the checker re-derives its polynomial from the case file."
+    else:
+        methods = summary.get("by_method", {})
+        parts = [f"{count} {_METHOD_WORDS.get(name, name)}" for name, count in methods.items()]
+        splits = summary.get("splits", {})
+        split_text = (" Midpoint splits per parameter: " + ", ".join(f"{n} {k}" for n, k in splits.items())
+                      + ".") if splits else ""
+        opened = summary.get("open", 0)
+        open_text = f" {opened} piece(s) are not proven (open)." if opened else ""
+        what = (f"a partition of the box into {summary.get('pieces', 0)} piece(s): "
+                + "; ".join(parts or ["none proven"]) + "." + split_text + open_text)
+    blocks: list = [Paragraph(("The proof, written as a certificate that a short separate checker "
+                               "re-verifies without the search: " + what,))]
+    if sha256:
+        blocks.append(Paragraph(("Certificate file certificate.json, SHA-256 ", Code(sha256), "."), "note"))
+    if command:
+        blocks.append(Paragraph(("Re-check it: ", Code(command),
+                                 " (prints VALID or INVALID and the first piece that fails)."), "note"))
+    return blocks
+
+
+def certificate_section(result: CheckResult, degree: int, proof: dict | None = None,
+                        sha256: str = "", command: str = "") -> Section:
+    """The proof (the certificate's partition, when made) and the four Kharitonov polynomials
+    of the overbound over the whole box, with tables: the proof themselves when they are all
+    Hurwitz, else a record kept apart from it."""
     over = result.overbound
+    blocks: list = proof_blocks(proof, sha256, command)
+    record = not over.stable
     if over.stable:
         lead = ("All four Kharitonov polynomials of the coefficient overbound are Hurwitz. By "
                 "Kharitonov's theorem every polynomial whose coefficients lie in these intervals is "
                 "Hurwitz, hence every parameter set in the box gives a stable loop.")
     elif result.verdict == "stable":
-        lead = ("The overbound over the whole box is not enough on its own (see the failing "
-                "polynomial below); the proof came from the method named above. The tables are "
-                "the record of the overbound.")
+        lead = ("For the record, not part of the proof: the interval overbound over the whole box, "
+                "the first test tried, is not enough on its own (a Kharitonov polynomial below is not "
+                "Hurwitz, because the overbound forgets that coefficients share parameters). The "
+                "proof is the one above.")
     else:
         lead = ("The overbound over the whole box is not Hurwitz; the verdict rests on the witness "
                 "below, which is a point of the box checked with its own exact Routh array.")
-    blocks: list = [Paragraph((lead,))]
+    tables: list = [Paragraph((lead,))]
     if not result.vertex_tables:
-        blocks.append(Paragraph(("No Kharitonov tables: the range of the leading coefficient "
+        tables.append(Paragraph(("No Kharitonov tables: the range of the leading coefficient "
                                  "contains zero, so the degree is not invariant over the box.",), "note"))
-        return Section("Certificate: Routh arrays of the Kharitonov polynomials", tuple(blocks),
-                       anchor="certificate")
-    blocks.append(Paragraph(("Entries are exact rationals. Long ones are shown as ≈ a float; the "
-                             "exact text is kept (hover over it in the HTML report, listed below "
-                             "the table in the Markdown report, and in result.json under "
-                             "\"certificate\").",), "note"))
-    group = Section("", tuple(_vertex_section(v, degree) for v in result.vertex_tables), group=True)
-    blocks.append(group)
-    return Section("Certificate: Routh arrays of the Kharitonov polynomials", tuple(blocks),
-                   anchor="certificate")
+    else:
+        tables.append(Paragraph(("Entries are exact rationals. Long ones are shown as ≈ a float; the "
+                                 "exact text is kept (hover over it in the HTML report, listed below "
+                                 "the table in the Markdown report, and in result.json under "
+                                 "\"certificate\").",), "note"))
+        tables.append(Section("", tuple(_vertex_section(v, degree) for v in result.vertex_tables),
+                              group=True))
+    if record and blocks:
+        blocks.append(Section("For the record: the whole-box overbound (not the proof)", tuple(tables)))
+    else:
+        blocks += tables
+    return Section("Certificate", tuple(blocks), anchor="certificate")
 
 
 def witness_section(case, witness: Witness, title: str = "Witness: a parameter set that is not stable"

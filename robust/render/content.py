@@ -8,8 +8,10 @@ yield; the figures; the cautions; the record (version, date, case checksum, sett
 from __future__ import annotations
 
 from fractions import Fraction
+from pathlib import Path
 from typing import Any
 
+from ..analysis.certificate import digest
 from ..analysis.outcomes import Outcome, Verdict
 from ..analysis.signoff import Analysis
 from ..exact.numbers import approx_text
@@ -166,7 +168,7 @@ def _polynomial(analysis: Analysis) -> Section:
     return Section("Characteristic polynomial", tuple(blocks), anchor="polynomial")
 
 
-def _verdict(analysis: Analysis) -> Section:
+def _verdict(analysis: Analysis, folder: str = "DIR") -> Section:
     case, result = analysis.case, analysis.check
     blocks: list = [
         Paragraph((Badge(result.verdict.headline, result.verdict.outcome.value, "check.verdict",
@@ -186,7 +188,10 @@ def _verdict(analysis: Analysis) -> Section:
     if result.verdict == "undecided":
         blocks += undecided_blocks(result)
     blocks.append(Paragraph((f"Time: {result.seconds:.2f} s.",), "note"))
-    blocks.append(certificate_section(result, case.family.degree))
+    proof = analysis.certificate
+    sha = digest(proof) if proof is not None else ""
+    command = f"robust verify {Path(folder) / 'certificate.json'} --case {case.path}" if proof else ""
+    blocks.append(certificate_section(result, case.family.degree, proof, sha, command))
     if result.witness is not None:
         blocks.append(witness_section(case, result.witness))
     return Section("Verdict", tuple(blocks), anchor="verdict")
@@ -379,10 +384,11 @@ def _record(analysis: Analysis) -> Section:
                               Preformatted(rerun)), anchor="record")
 
 
-def build_document(analysis: Analysis) -> Document:
-    """The whole report as blocks."""
+def build_document(analysis: Analysis, folder: str = "DIR") -> Document:
+    """The whole report as blocks; ``folder`` is the report's folder as the user named it (for
+    the command that re-checks the certificate written there)."""
     return Document(
         f"robust report: {analysis.case.title}",
-        (_header(analysis), _parameters(analysis), _polynomial(analysis), _verdict(analysis),
+        (_header(analysis), _parameters(analysis), _polynomial(analysis), _verdict(analysis, folder),
          _margins(analysis), _ranking(analysis), _yield(analysis), _figures(analysis), _cautions(),
          _record(analysis)))

@@ -3,6 +3,7 @@ commands' ``--json`` give, plus the certificate tables."""
 
 from __future__ import annotations
 
+from ..analysis.certificate import digest
 from ..analysis.signoff import Analysis
 
 __all__ = ["TOOL_NAME", "certificate_data", "check_data", "result_data"]
@@ -49,6 +50,9 @@ def result_data(analysis: Analysis) -> dict[str, object]:
         "rank": analysis.rank.as_dict(),
         "yield": analysis.yield_result.as_dict(),
         "certificate": certificate_data(analysis),
+        "proof": None if analysis.certificate is None else {
+            "file": "certificate.json", "sha256": digest(analysis.certificate),
+            "verdict": analysis.certificate["verdict"], **analysis.certificate["summary"]},
         "settings": {"max_boxes": analysis.settings.max_boxes,
                      "search_boxes": analysis.settings.search_boxes,
                      "search_tests": analysis.settings.search_tests,

@@ -25,6 +25,7 @@ from collections.abc import Callable, Iterator, Mapping
 from dataclasses import dataclass
 from pathlib import Path
 
+from ..analysis.certificate import certificate_bytes
 from ..analysis.signoff import Analysis
 from ..errors import InputError
 from .content import build_document
@@ -33,10 +34,10 @@ from .figures import FIGURE_NAMES, draw_figures
 from .html import render_html
 from .markdown import render_markdown
 
-__all__ = ["REPORT_FILES", "ReportFiles", "check_directory", "check_new_file", "write_report"]
+__all__ = ["REPORT_FILES", "ReportFiles", "check_directory", "check_new_file", "write_new_file", "write_report"]
 
 #: Every file a report may write, relative to its directory (what "replace" may touch).
-REPORT_FILES = ("report.html", "report.md", "result.json", "case.toml",
+REPORT_FILES = ("report.html", "report.md", "result.json", "case.toml", "certificate.json",
                 *(f"figures/{name}.png" for name in FIGURE_NAMES))
 
 
@@ -152,6 +153,31 @@ def check_new_file(path: str | Path, what: str) -> Path:
     return target
 
 
+def write_new_file(path: str | Path, content: bytes, what: str) -> Path:
+    """Write ``content`` to the new file ``path``: complete or not at all (written beside it,
+    then linked into place), and never over an existing file or link.
+
+    Raises
+    ------
+    InputError
+        Naming ``what`` when ``path`` appeared since it was checked.
+    """
+    target = Path(path)
+    handle, partial = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".partial",
+                                       dir=target.absolute().parent)
+    try:
+        with os.fdopen(handle, "wb") as stream:
+            stream.write(content)
+        os.chmod(partial, 0o666 & ~_umask())
+        os.link(partial, target)  # fails when the target exists: nothing is overwritten
+    except FileExistsError:
+        raise InputError(what, "the file exists already; robust never overwrites it", "a new file name",
+                         str(target)) from None
+    finally:
+        os.unlink(partial)
+    return target
+
+
 @contextlib.contextmanager
 def _interrupts_held() -> Iterator[None]:
     """Hold SIGINT back (delivered when the block ends): a few renames become one step."""
@@ -237,7 +263,7 @@ def write_report(analysis: Analysis, directory: str | Path, *,
     say("report: drawing the figures")
     pictures = draw_figures(analysis)
     images = {p.name: p.png for p in pictures}
-    document = build_document(analysis)
+    document = build_document(analysis, str(directory))
     footer = _footer(analysis)
     html = render_html(document, images, footer)
     markdown = render_markdown(document, {p.name: f"figures/{p.name}.png" for p in pictures}, footer)
@@ -254,6 +280,8 @@ def write_report(analysis: Analysis, directory: str | Path, *,
         for name, content in extra.items():
             (fresh / name).write_bytes(content)
         (fresh / "result.json").write_text(data, encoding="utf-8")
+        if analysis.certificate is not None:
+            (fresh / "certificate.json").write_bytes(certificate_bytes(analysis.certificate))
         os.chmod(fresh, 0o777 & ~_umask())  # mkdtemp makes it private; a report folder is not
         _place(fresh, path, extra)
     except BaseException:
