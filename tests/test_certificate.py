@@ -280,3 +280,25 @@ def test_the_report_carries_the_certificate_and_the_command_that_checks_it(tmp_p
     record_at = markdown.index("For the record: the whole-box overbound (not the proof)")
     assert proof_at < record_at < markdown.index("NOT Hurwitz")
     assert json.loads(files.json.read_text())["proof"]["sha256"] == digest(analysis.certificate)
+
+
+def test_the_pieces_of_a_certificate_tile_its_box(certified):
+    """leaves(): the pieces' volumes add up to the box's, exactly (a split halves one interval),
+    and every piece lies inside the box."""
+    from robust.analysis.certificate import leaves
+
+    case, data = certified
+    box = {n: (Fraction(a), Fraction(b)) for n, (a, b) in data["box"].items()}
+
+    def volume(low, high):
+        out = Fraction(1)
+        for n, (a, b) in box.items():
+            if b > a:
+                out *= high[n] - low[n]
+        return out
+
+    pieces = leaves(data)
+    assert len(pieces) == data["summary"]["pieces"]
+    assert sum(volume(low, high) for _, low, high in pieces) == volume(
+        {n: a for n, (a, _) in box.items()}, {n: b for n, (_, b) in box.items()})
+    assert all(box[n][0] <= low[n] <= high[n] <= box[n][1] for _, low, high in pieces for n in box)

@@ -29,7 +29,7 @@ from .outcomes import Verdict
 from .subbox import LABELS
 from .verdict import DEFAULT_MAX_BOXES, DEFAULT_MAX_SECONDS, CheckResult, decide
 
-__all__ = ["FORMAT", "VERSION", "build_certificate", "certificate_bytes", "certify"]
+__all__ = ["FORMAT", "VERSION", "build_certificate", "certificate_bytes", "certify", "digest", "leaves"]
 
 FORMAT = "robust certificate"
 VERSION = 1
@@ -102,6 +102,25 @@ def build_certificate(case, result: CheckResult, scale: Fraction | None = None) 
     data["summary"] = {"pieces": proof.pieces, "by_method": dict(sorted(methods.items())), "open": opened,
                        "splits": dict(splits.most_common())}
     return data
+
+
+def leaves(data: dict) -> list[tuple[str, dict[str, Fraction], dict[str, Fraction]]]:
+    """The pieces of a certificate's tree: (method, low, high) per leaf, in tree order (for
+    pictures and summaries; :mod:`robust.verify` walks the tree on its own)."""
+    names = list(data["box"])
+    box = data["box"]
+    stack = [({n: Fraction(box[n][0]) for n in names}, {n: Fraction(box[n][1]) for n in names})]
+    out = []
+    for node in data["tree"]:
+        low, high = stack.pop()
+        if "split" in node:
+            name = node["split"]
+            middle = (low[name] + high[name]) / 2
+            stack.append(({**low, name: middle}, high))
+            stack.append((low, {**high, name: middle}))
+        else:
+            out.append((node["piece"], low, high))
+    return out
 
 
 def certificate_bytes(data: dict) -> bytes:

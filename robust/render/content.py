@@ -353,7 +353,14 @@ def _figures(analysis: Analysis) -> Section:
         "(c) Which parameter drives which coefficient. Solid: the coefficient grows with the parameter "
         "over the whole box; dashed: it falls; dotted: mixed.",
         "dependency graph parameters to coefficients")
-    return Section("Figures", (value_set, cloud, graph), anchor="figures", new_page=True)
+    partition = Figure(
+        "partition",
+        "(d) The proof's partition of the box (certificate.json), projected on the two parameters split "
+        "most: each rectangle is a piece (overlapping where pieces differ only in the other parameters), "
+        "grey when proven by the Bernstein test of a_n, a_0 and Delta_(n-1), hatched when proven by the "
+        "Kharitonov polynomials of its own overbound, crossed when not proven within the budget.",
+        "partition of the box into proven pieces")
+    return Section("Figures", (value_set, cloud, graph, partition), anchor="figures", new_page=True)
 
 
 def _cautions() -> Section:

@@ -23,7 +23,7 @@ from .figdata import choose_omegas, nominal_roots, polynomial_roots, sample_draw
 __all__ = ["FIGURE_NAMES", "Picture", "draw_figures"]
 
 #: File stems of the pictures, in report order.
-FIGURE_NAMES = ("ranking", "value_set", "root_cloud", "dependency_graph")
+FIGURE_NAMES = ("ranking", "value_set", "root_cloud", "dependency_graph", "partition")
 
 #: Members sampled for the value-set and root-cloud pictures.
 SAMPLED_MEMBERS = 400
@@ -84,13 +84,15 @@ def draw_figures(analysis: Analysis) -> tuple[Picture, ...]:
             return (ranking_picture(analysis),
                     _not_drawn("value_set", "value set of the coefficient overbound"),
                     _not_drawn("root_cloud", "roots of sampled members"),
-                    dependency_picture(case))
+                    dependency_picture(case),
+                    _not_drawn("partition", "pieces of the proof"))
         draws = sample_draws(case, SAMPLED_MEMBERS, analysis.settings.seed)
         return (
             ranking_picture(analysis),
             value_set_picture(case, choose_omegas(case), draws),
             root_cloud_picture(case, draws, analysis.check.witness),
             dependency_picture(case),
+            partition_picture(analysis),
         )
 
 
@@ -413,3 +415,75 @@ def ranking_picture(analysis: Analysis) -> Picture:
     alt = "Parameter margins: " + "; ".join(
         f"{p.name} alone {a:.4g}, given others {g:.4g}" for p, a, g in zip(params, alone, given, strict=True))
     return Picture("ranking", _png(figure), alt)
+
+
+# -- (d) the proof's partition -------------------------------------------------------------
+
+_PIECE_STYLE = {"bernstein": {"facecolor": "#d9d9d9", "hatch": ""},
+                "kharitonov": {"facecolor": "white", "hatch": "///"},
+                "open": {"facecolor": "white", "hatch": "xx"}}
+
+
+def partition_axes(data: dict | None) -> tuple[str, ...]:
+    """The two parameters split most in the certificate (then the first ones of the box)."""
+    if data is None:
+        return ()
+    names = list(data["box"])
+    split = list(data.get("summary", {}).get("splits", {}))
+    wide = [n for n in names if data["box"][n][0] != data["box"][n][1] and n not in split]
+    return tuple((split + wide)[:2])
+
+
+def partition_picture(analysis: Analysis) -> Picture:
+    """The certificate's pieces projected on the two parameters split most."""
+    from matplotlib.collections import PatchCollection
+    from matplotlib.patches import Rectangle
+
+    from ..analysis.certificate import leaves
+
+    data = analysis.certificate
+    axes_names = partition_axes(data)
+    if data is None or not data.get("tree") or len(axes_names) < 1:
+        figure = _new_figure(7.6, 1.0)
+        ax = figure.subplots()
+        ax.set_axis_off()
+        text = "No partition: the verdict rests on a witness (or the box has no tolerance)."
+        ax.text(0.5, 0.5, text, ha="center", va="center", fontsize=9)
+        return Picture("partition", _png(figure), text)
+    x_name = axes_names[0]
+    y_name = axes_names[1] if len(axes_names) > 1 else None
+    figure = _new_figure(5.6, 4.4)
+    ax = figure.subplots()
+    pieces = leaves(data)
+    counts: dict[str, int] = {}
+    groups: dict[str, list] = {}
+    for method, low, high in pieces:
+        counts[method] = counts.get(method, 0) + 1
+        x0, x1 = to_float(low[x_name]), to_float(high[x_name])
+        y0, y1 = (to_float(low[y_name]), to_float(high[y_name])) if y_name else (0.0, 1.0)
+        groups.setdefault(method, []).append(Rectangle((x0, y0), x1 - x0, y1 - y0))
+    for method, rectangles in groups.items():  # one collection per method: fast for many pieces
+        style = _PIECE_STYLE.get(method, _PIECE_STYLE["open"])
+        ax.add_collection(PatchCollection(rectangles, edgecolor="black", linewidth=0.6,
+                                          facecolor=style["facecolor"], hatch=style["hatch"] or None))
+    box = data["box"]
+    ax.set_xlim(to_float(Fraction(box[x_name][0])), to_float(Fraction(box[x_name][1])))
+    ax.set_xlabel(_axis_label(analysis, x_name))
+    if y_name:
+        ax.set_ylim(to_float(Fraction(box[y_name][0])), to_float(Fraction(box[y_name][1])))
+        ax.set_ylabel(_axis_label(analysis, y_name))
+    else:
+        ax.set_yticks([])
+    words = {"bernstein": "Bernstein (grey)", "kharitonov": "Kharitonov of the piece (hatched)",
+             "open": "not proven (crossed)"}
+    ax.set_title(f"{len(pieces)} piece(s): " + ", ".join(f"{k} {words.get(m, m)}" for m, k in counts.items()),
+                 fontsize=9)
+    alt = (f"Partition of the box into {len(pieces)} pieces, projected on {x_name}"
+           + (f" and {y_name}" if y_name else "") + ": "
+           + ", ".join(f"{k} proven by {m}" if m != "open" else f"{k} open" for m, k in counts.items()))
+    return Picture("partition", _png(figure), alt)
+
+
+def _axis_label(analysis: Analysis, name: str) -> str:
+    unit = analysis.case.parameter(name).unit
+    return f"{name} ({unit})" if unit else name
