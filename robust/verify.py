@@ -198,8 +198,9 @@ def _delta(coefficients: Sequence[MultiPoly], nvars: int) -> MultiPoly:
     """Delta_(n-1) in the parameters, multiplied out term by term."""
     n = len(coefficients) - 1
     packed = []
-    for c in coefficients:
-        packed.append({sum(e << (sparse.BITS * i) for i, e in enumerate(exps)): v for exps, v in c.terms})
+    for coefficient in coefficients:
+        packed.append({sum(e << (sparse.BITS * i) for i, e in enumerate(exps)): v
+                       for exps, v in coefficient.terms})
     work = sparse.Work(10**9)
     total: dict = {}
     for exps, c in hurwitz_determinant_terms(n, n - 1):

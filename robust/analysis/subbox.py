@@ -24,6 +24,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
+from typing import Any
 
 from ..errors import InputError
 from ..exact import sparse
@@ -87,7 +88,8 @@ class SubBoxTest:
 
 def _to_sparse(poly: MultiPoly) -> dict:
     out = {}
-    for exps, c in poly.terms:
+    terms: list[tuple[tuple[int, ...], Any]] = list(poly.terms)  # exact rationals (mpq)
+    for exps, c in terms:
         packed = sum(e << (sparse.BITS * i) for i, e in enumerate(exps))
         out[packed] = int(c) if c.denominator == 1 else c
     return out
@@ -160,7 +162,7 @@ def hurwitz_conditions(family: UncertainPolynomial, point: Sequence[Fraction],
         value = poly.evaluate(point)
         if value == 0:
             return None
-        poly = poly if value > 0 else MultiPoly.from_mapping(nvars, {e: -c for e, c in poly.terms})
+        poly = poly if value > 0 else MultiPoly.linear_combination(nvars, [poly], [-1])
         ends = {i: box.low[i] if sign > 0 else box.high[i]
                 for i, sign in enumerate(poly.derivative_signs(intervals)) if sign}
         signed.append(poly.substitute(ends) if ends else poly)

@@ -25,6 +25,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
 from math import comb, gcd, lcm
+from typing import Any
 
 import numpy as np
 
@@ -89,7 +90,7 @@ class Patch:
     def _ends(self, code: int) -> dict[int, bool]:
         return {i: bool(code >> j & 1) for j, i in enumerate(self.axes)}
 
-    def _corner_values(self) -> list[int]:
+    def _corner_values(self) -> list[Any]:
         # corner code bit j set: axis j at its high end; the corner sub-tensor in C order
         # has axis 0 as the most significant index, so reverse the bits
         # (every axis has length degree + 1 >= 2, so each slice keeps exactly two ends)
@@ -192,9 +193,10 @@ def bernstein_patch(poly: MultiPoly, box: Sequence[tuple[Fraction, Fraction]]) -
     degrees = [poly.degree_in(i) for i in axes]
     tensor = np.zeros([d + 1 for d in degrees], dtype=object)
     denominators = 1
-    for _, c in poly.terms:
+    terms: list[tuple[tuple[int, ...], Any]] = list(poly.terms)  # exact rationals (mpq)
+    for _, c in terms:
         denominators = lcm(denominators, int(c.denominator))
-    for exponents, c in poly.terms:
+    for exponents, c in terms:
         tensor[tuple(exponents[i] for i in axes)] += int(c * denominators)
     scale = denominators
     for j, (i, d) in enumerate(zip(axes, degrees, strict=True)):
