@@ -517,6 +517,10 @@ def _summary_lines(analysis, files) -> list[str]:
     if analysis.safety_stop:
         lines.append("Note: the wall-clock safety limit cut a search short; a re-run may differ")
     lines.append(f"Report: {files.html}")
+    if analysis.certificate is not None:
+        proof = files.directory / "certificate.json"
+        lines.append(f"Proof: {proof} ({analysis.certificate['summary']['pieces']} piece(s)); "
+                     f"re-check it with: robust verify {proof}")
     return lines
 
 
