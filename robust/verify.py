@@ -238,6 +238,11 @@ def _conditions(data: dict, family, point) -> list[tuple[MultiPoly, dict[int, Fr
 
 def _check_tree(data: dict, family, low, high, verdict: str) -> tuple[int, int]:
     names = list(family.names)
+    if verdict == "undecided" and data.get("stable_point") is None:
+        # nothing proven (no stable point was found): the whole box is one open piece
+        if data.get("tree") != [{"piece": "open"}]:
+            raise _Invalid("an undecided certificate without a stable point claims proven pieces")
+        return 1, 1
     point = _point(data.get("stable_point"), names, "stable point")
     if not all(a <= x <= b for a, x, b in zip(low, point, high, strict=True)):
         raise _Invalid("the stable point lies outside the box")

@@ -302,3 +302,21 @@ def test_the_pieces_of_a_certificate_tile_its_box(certified):
     assert sum(volume(low, high) for _, low, high in pieces) == volume(
         {n: a for n, (a, _) in box.items()}, {n: b for n, (_, b) in box.items()})
     assert all(box[n][0] <= low[n] <= high[n] <= box[n][1] for _, low, high in pieces for n in box)
+
+
+def test_an_undecided_result_without_a_stable_point_certifies_nothing(tmp_path):
+    """An undecided result with no partition (as when no point of the box is known stable)
+    becomes one open piece that claims nothing; a proven piece added to it is refused."""
+    import dataclasses
+
+    from robust.analysis.outcomes import Verdict
+
+    case = _wide_chain(tmp_path)
+    result = dataclasses.replace(decide(case.family, max_boxes=3, search=False),
+                                 verdict=Verdict.UNDECIDED, proof=None)
+    data = build_certificate(case, result)
+    assert data["stable_point"] is None and data["tree"] == [{"piece": "open"}]
+    verification = verify_certificate(_roundtrip(data), case)
+    assert verification.valid and verification.pieces == 1
+    data["tree"] = [{"piece": "kharitonov"}]
+    assert not verify_certificate(data, case).valid
