@@ -33,6 +33,7 @@ the box with every tolerance scaled by it about nominal).
 from __future__ import annotations
 
 import json
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
@@ -53,6 +54,11 @@ __all__ = ["Verification", "verify_certificate", "verify_file"]
 FORMAT = "robust certificate"
 VERSION = 1
 MAX_BYTES = 200_000_000
+#: Limits of the Bernstein conditions, the same as the engine's (robust.analysis.subbox): the
+#: generic Delta_(n-1) grows threefold per degree, so a crafted certificate must not make the
+#: checker expand a huge one.
+MAX_DEGREE = 12
+MAX_PRODUCTS = 2_000_000
 
 
 @dataclass(frozen=True, slots=True)
@@ -71,6 +77,9 @@ class Verification:
                 "verdict": self.verdict, "statement": self.statement}
 
 
+_INTEGER = re.compile(r"-?[0-9]+")
+
+
 class _Invalid(Exception):
     def __init__(self, reason: str, piece: int | None = None, box: dict | None = None):
         super().__init__(reason)
@@ -82,8 +91,10 @@ def _number(text: object, where: str) -> Fraction:
     if not isinstance(text, str):
         raise _Invalid(f"{where}: {text!r} is not an exact number written as a string")
     top, _, bottom = text.partition("/")
+    if not _INTEGER.fullmatch(top) or not (bottom == "" or _INTEGER.fullmatch(bottom)):
+        raise _Invalid(f"{where}: {text!r} is not an exact rational written p or p/q")
     try:
-        value = Fraction(int(mpz(top.strip())), int(mpz(bottom.strip() or "1")))
+        value = Fraction(int(mpz(top)), int(mpz(bottom or "1")))
     except (ValueError, ZeroDivisionError):
         raise _Invalid(f"{where}: {text!r} is not an exact rational") from None
     return value
@@ -168,6 +179,8 @@ def _same_case(data: dict, case):
     box = data.get("box")
     if not isinstance(box, dict) or list(box) != names:
         raise _Invalid("the box does not name the case's parameters in order")
+    if not all(isinstance(box[n], list) and len(box[n]) == 2 for n in names):
+        raise _Invalid("the box does not give [low, high] for every parameter")
     low = [_number(box[n][0], f"box {n}") for n in names]
     high = [_number(box[n][1], f"box {n}") for n in names]
     scale = data.get("scale")
@@ -201,20 +214,26 @@ def _delta(coefficients: Sequence[MultiPoly], nvars: int) -> MultiPoly:
     for coefficient in coefficients:
         packed.append({sum(e << (sparse.BITS * i) for i, e in enumerate(exps)): v
                        for exps, v in coefficient.terms})
-    work = sparse.Work(10**9)
+    work = sparse.Work(MAX_PRODUCTS)
     total: dict = {}
-    for exps, c in hurwitz_determinant_terms(n, n - 1):
-        term = sparse.constant(c)
-        for k, e in enumerate(exps):
-            for _ in range(e):
-                term = sparse.multiply(term, packed[k], work)
-        sparse.add_into(total, term)
+    try:
+        for exps, c in hurwitz_determinant_terms(n, n - 1):
+            term = sparse.constant(c)
+            for k, e in enumerate(exps):
+                for _ in range(e):
+                    term = sparse.multiply(term, packed[k], work)
+            sparse.add_into(total, term)
+    except InputError:  # the work account refused
+        raise _Invalid(f"Delta_(n-1) needs more than {MAX_PRODUCTS:,} term products to check") from None
     return sparse.to_multipoly(total, nvars)
 
 
 def _conditions(data: dict, family, point) -> list[tuple[MultiPoly, dict[int, Fraction]]]:
     coefficients = family.coefficients
     nvars = len(family.names)
+    if family.degree > MAX_DEGREE:  # the engine writes no Bernstein piece above it either
+        raise _Invalid(f"Bernstein pieces for degree {family.degree} (the checker expands "
+                       f"Delta_(n-1) up to degree {MAX_DEGREE})")
     polys = [coefficients[0], coefficients[-1]]
     if family.degree >= 2:
         polys.append(_delta(coefficients, nvars))
@@ -281,6 +300,9 @@ def _check_tree(data: dict, family, low, high, verdict: str) -> tuple[int, int]:
         elif method == "bernstein":
             if conditions is None:
                 conditions = _conditions(data, family, point)
+                for _, fixed in conditions:  # the engine fixes at ends of the certified box
+                    if any(not low[i] <= v <= high[i] for i, v in fixed.items()):
+                        raise _Invalid("a condition's fixed value lies outside the box")
             _bernstein_piece(family, conditions, node.get("least"), lo, hi, pieces, where)
         else:
             raise _Invalid(f"unknown method {method!r}", pieces, where)
@@ -302,10 +324,11 @@ def _bernstein_piece(family, conditions, least, lo, hi, piece: int, where: dict)
     if not isinstance(least, list) or len(least) != len(conditions):
         raise _Invalid("the piece does not give one least coefficient per condition", piece, where)
     for k, ((poly, fixed), stated) in enumerate(zip(conditions, least, strict=True)):
+        # the parameters are fixed one after another, so each slope must keep its sign over the
+        # hull of the piece and every fixed value at once (not just its own coordinate)
+        span = as_intervals((min(lo[j], fixed.get(j, lo[j])), max(hi[j], fixed.get(j, hi[j])))
+                            for j in range(len(lo)))
         for i, value in fixed.items():
-            # monotone between the fixed value and the piece: then the condition is least there
-            span = as_intervals((min(value, lo[j]), max(value, hi[j])) if j == i else (lo[j], hi[j])
-                                for j in range(len(lo)))
             slope_low, slope_high = poly.derivative(i).outer_interval(span)
             if not ((value <= lo[i] and slope_low >= 0) or (value >= hi[i] and slope_high <= 0)):
                 raise _Invalid(f"condition {k + 1} is not shown monotone in {family.names[i]} "

@@ -320,3 +320,49 @@ def test_an_undecided_result_without_a_stable_point_certifies_nothing(tmp_path):
     assert verification.valid and verification.pieces == 1
     data["tree"] = [{"piece": "kharitonov"}]
     assert not verify_certificate(data, case).valid
+
+
+def test_fixed_parameters_are_checked_together_and_inside_the_box(tmp_path):
+    """A forged "stable" certificate for 2 s + (-1/2 + (3 - x)(2 - y)), x, y in [1, 2], which is
+    unstable at x = y = 2 (a_0 = -1/2 < 0, by hand): it fixes x = 4 and y = 3 in a_0, where
+    each slope alone has its sign over its own coordinate's span but the two together do not
+    bound a_0 from below. The checker refuses it (the fixed values lie outside the box, and
+    every slope is checked over the hull of the piece and all the fixed values)."""
+    params = {n: {"nominal": "3/2", "tolerance": "1/2"} for n in ("x", "y")}
+    case = _write(tmp_path, case_toml(params, ["1", "-1/2 + (3 - x)*(2 - y)"]))
+    result, data = certify(case)
+    assert result.verdict == "unstable"
+    forged = dict(data, verdict="stable", witness=None, stable_point={"x": "1", "y": "1"},
+                  conditions=[{"name": "leading coefficient", "fixed": {}},
+                              {"name": "constant coefficient", "fixed": {"x": "4", "y": "3"}}],
+                  tree=[{"piece": "bernstein", "least": ["1", "1/2"]}])
+    assert not verify_certificate(forged, case).valid
+    # the same claim with the fixed values at the box's far corner is refused by the slopes
+    forged["conditions"][1]["fixed"] = {"x": "2", "y": "2"}
+    assert not verify_certificate(forged, case).valid
+
+
+def test_a_malformed_box_is_invalid_not_a_crash(certified):
+    case, data = certified
+    bad = copy.deepcopy(data)
+    bad["box"]["m1"] = "0"
+    result = verify_certificate(bad, case)
+    assert not result.valid and "[low, high]" in result.failed["reason"]
+    bad = copy.deepcopy(data)
+    bad["box"]["m1"][0] = "0x10"
+    assert not verify_certificate(bad, case).valid
+
+
+def test_a_bernstein_piece_above_the_degree_limit_is_refused_before_expanding(tmp_path):
+    """A forged Bernstein piece for a degree-16 family would make the checker expand a generic
+    Hurwitz determinant of 441,145 terms; it is refused at once (the engine writes none)."""
+    from math import comb
+
+    coefficients = [f"{comb(16, k)} + u/1000" for k in range(17)]
+    case = _write(tmp_path, case_toml({"u": {"nominal": "1", "tolerance": "0.5"}}, coefficients))
+    _, data = certify(case, max_boxes=20)
+    forged = dict(data, verdict="stable", witness=None, stable_point={"u": "1"},
+                  conditions=[{"name": "c", "fixed": {}}] * 3,
+                  tree=[{"piece": "bernstein", "least": ["1", "1", "1"]}])
+    result = verify_certificate(forged, case)
+    assert not result.valid and "degree 16" in result.failed["reason"]
