@@ -42,7 +42,7 @@ from pathlib import Path
 from .errors import InputError
 from .exact import sparse
 from .exact.bernstein import bernstein_patch
-from .exact.hurwitz import hurwitz_determinant_terms
+from .exact.hurwitz import MAX_DELTA_DEGREE, MAX_DELTA_PRODUCTS, hurwitz_determinant_terms
 from .exact.interval import IntervalPolynomial, kharitonov_test
 from .exact.numbers import from_mpq, mpz
 from .exact.polynomials import MultiPoly, as_intervals
@@ -54,11 +54,10 @@ __all__ = ["Verification", "verify_certificate", "verify_file"]
 FORMAT = "robust certificate"
 VERSION = 1
 MAX_BYTES = 200_000_000
-#: Limits of the Bernstein conditions, the same as the engine's (robust.analysis.subbox): the
-#: generic Delta_(n-1) grows threefold per degree, so a crafted certificate must not make the
-#: checker expand a huge one.
-MAX_DEGREE = 12
-MAX_PRODUCTS = 2_000_000
+#: The engine's limits for the Bernstein conditions: a crafted certificate must not make the
+#: checker expand a huge Delta_(n-1).
+MAX_DEGREE = MAX_DELTA_DEGREE
+MAX_PRODUCTS = MAX_DELTA_PRODUCTS
 
 
 @dataclass(frozen=True, slots=True)

@@ -287,7 +287,7 @@ def test_the_pieces_of_a_certificate_tile_its_box(certified):
     and every piece lies inside the box."""
     from robust.analysis.certificate import leaves
 
-    case, data = certified
+    _, data = certified
     box = {n: (Fraction(a), Fraction(b)) for n, (a, b) in data["box"].items()}
 
     def volume(low, high):

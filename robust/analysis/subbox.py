@@ -29,7 +29,7 @@ from typing import Any
 from ..errors import InputError
 from ..exact import sparse
 from ..exact.bernstein import Patch, bernstein_patch, tensor_size
-from ..exact.hurwitz import hurwitz_determinant_terms
+from ..exact.hurwitz import MAX_DELTA_DEGREE, MAX_DELTA_PRODUCTS, hurwitz_determinant_terms
 from ..exact.polynomials import MultiPoly, as_intervals
 from ..exact.routh import is_hurwitz
 from ..model.family import Box, UncertainPolynomial
@@ -39,11 +39,10 @@ __all__ = ["MAX_COEFFICIENTS", "MAX_DEGREE", "Conditions", "SubBoxTest", "hurwit
 #: Above this many Bernstein coefficients per box (all conditions together) the test costs
 #: more than the interval overbound's subdivision saves; the engine keeps Kharitonov then.
 MAX_COEFFICIENTS = 60_000
-#: Highest degree given the test: the generic Delta_(n-1) has 4605 terms at degree 12 and
-#: grows about threefold per degree (441145 at 16, 19 s to expand).
-MAX_DEGREE = 12
-#: Term products allowed when multiplying out Delta_(n-1) in the parameters.
-MAX_PRODUCTS = 2_000_000
+#: Highest degree given the test, and the term products allowed when multiplying out
+#: Delta_(n-1) (shared with the certificate checker: robust.exact.hurwitz).
+MAX_DEGREE = MAX_DELTA_DEGREE
+MAX_PRODUCTS = MAX_DELTA_PRODUCTS
 #: Parent patches are handed to the halves (no re-expansion) when this small.
 KEEP_COEFFICIENTS = 4096
 
