@@ -312,8 +312,9 @@ def verify_command(certificate: str, case: str | None, as_json: bool) -> None:
     if as_json:
         _emit_json(result.as_dict())
     elif result.valid:
-        click.echo(f"VALID: {result.verdict}; {result.pieces} piece(s) re-checked. "
-                   f"Proven: {result.statement}.")
+        done = "the witness re-checked" if result.verdict == "unstable" else \
+            f"{result.pieces} piece(s) re-checked"
+        click.echo(f"VALID: {result.verdict}; {done}. Proven: {result.statement}.")
     else:
         failed = result.failed or {}
         where = "" if failed.get("piece") is None else f" at piece {failed['piece']}"
