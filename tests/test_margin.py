@@ -409,3 +409,29 @@ def test_every_shipped_margin_is_tight_or_ends_at_a_limit(path):
     assert bracket.relative_width is not None and bracket.relative_width <= 1e-6
     if bracket.witness is not None:
         assert _max_real_part(bracket.witness.coefficients) >= -mpmath.mpf(10) ** -30
+
+
+def test_a_requirement_the_bracket_leaves_open_is_decided_once(monkeypatch):
+    """s^3 + (2 + x) s^2 + (2 + y) s + (3 + x + y + xy), x, y in [-1/4, 1/4], has rho* = 2
+    exactly: a2 a1 - a3 a0 = 1 + x + y (derived by hand) stays positive on box(r) for r < 2.
+    A margin requirement of 1.9999999 lies inside the 1e-6 bracket around 2, so the bracket
+    cannot decide it alone; it passes, and given the direct decision already made, margin()
+    reuses it instead of deciding it again."""
+    import robust.analysis.requirements as requirements
+
+    params = {n: {"nominal": "0", "range": ["-0.25", "0.25"]} for n in ("x", "y")}
+    case = parse_case(_case_text(params, ["1", "2 + x", "2 + y", "3 + x + y + x*y"],
+                                 requirements={"margin": "1.9999999"}))
+    known = check_requirements(case)
+    assert [k.outcome.value for k in known] == ["pass"]
+    fresh = margin(case, with_decay=False)
+    assert fresh.direct is not None  # the bracket left it open
+
+    def refuse(*_args, **_kwargs):
+        raise AssertionError("decided again")
+
+    monkeypatch.setattr(requirements, "decide_requirement", refuse)
+    reused = margin(case, with_decay=False, known=known)
+    assert reused.direct is known[0]
+    assert reused.outcome == fresh.outcome and reused.outcome.value == "pass"
+    assert reused.margin.lower >= Fraction("1.9999999") and reused.margin.upper >= 2

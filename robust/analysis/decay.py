@@ -7,6 +7,7 @@ real part below -sigma: a certified bracket (proven below, a verified slow membe
 from __future__ import annotations
 
 import time
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
@@ -15,7 +16,7 @@ from ..exact.routh import routh_table
 from ..model.family import UncertainPolynomial, shifted_family
 from .bracket import Bracket, Work, bisect_margin, just_below
 from .outcomes import Outcome, Verdict, requirement_outcome
-from .requirements import DEFAULT_REQUIREMENT_BOXES, RequirementCheck, decide_requirement
+from .requirements import DEFAULT_REQUIREMENT_BOXES, RequirementCheck, reuse_or_decide
 from .verdict import Witness, decide
 
 __all__ = ["DecayResult", "decay_rate"]
@@ -96,8 +97,8 @@ def _decay_upper(family: UncertainPolynomial, seed: int = 0):
 
 def decay_rate(family: UncertainPolynomial, requirement: Fraction | None = None,
                rel_tol: float = 1e-6, max_boxes: int = 500, max_tests: int = 48,
-               max_seconds: float = 600.0, requirement_boxes: int = DEFAULT_REQUIREMENT_BOXES
-               ) -> DecayResult:
+               max_seconds: float = 600.0, requirement_boxes: int = DEFAULT_REQUIREMENT_BOXES,
+               known: Sequence[RequirementCheck] = ()) -> DecayResult:
     """Certified bracket on the worst-case decay rate over the family's box.
 
     Work is counted (``max_tests`` decisions of at most ``max_boxes`` boxes each), so the
@@ -136,8 +137,8 @@ def decay_rate(family: UncertainPolynomial, requirement: Fraction | None = None,
     outcome = requirement_outcome(requirement, None, bracket.lower, bracket.upper)
     if outcome is not Outcome.OPEN:  # the bracket decides it
         return DecayResult(bracket, requirement, outcome)
-    direct = decide_requirement(family, "decay_rate", requirement, requirement_boxes,
-                                max(work.deadline - time.perf_counter(), 0.01))
+    direct = reuse_or_decide(known, family, "decay_rate", requirement, requirement_boxes,
+                             max(work.deadline - time.perf_counter(), 0.01))
     outcome = requirement_outcome(requirement, direct.direct, bracket.lower, bracket.upper)
     # the bracket agrees with the direct decision: a proven requirement raises the proven end,
     # a refuted one lowers the witnessed end

@@ -27,6 +27,7 @@ Re(s) < -sigma, found the same way on the shifted family p(s - sigma).
 from __future__ import annotations
 
 import time
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
@@ -38,7 +39,7 @@ from .crossings import DEFAULT_CAP, exact_interval_margin, ray_upper_bound, tigh
 from .decay import DecayResult, decay_rate
 from .limits import ScaleEnd, end_of_scaling
 from .outcomes import LimitKind, Outcome, Verdict, requirement_outcome
-from .requirements import DEFAULT_REQUIREMENT_BOXES, RequirementCheck, decide_requirement
+from .requirements import DEFAULT_REQUIREMENT_BOXES, RequirementCheck, reuse_or_decide
 from .scaling import Scaling
 
 __all__ = ["DEFAULT_MARGIN_BOXES", "DEFAULT_MARGIN_TESTS", "MarginResult", "crossing_end", "margin"]
@@ -115,7 +116,8 @@ def crossing_end(family: UncertainPolynomial, bracket: Bracket, exact: str | Non
 def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float | None = None,
            max_seconds: float = 600.0, max_boxes: int = DEFAULT_MARGIN_BOXES,
            max_tests: int = DEFAULT_MARGIN_TESTS, with_decay: bool = True,
-           requirement_boxes: int = DEFAULT_REQUIREMENT_BOXES) -> MarginResult:
+           requirement_boxes: int = DEFAULT_REQUIREMENT_BOXES,
+           known: Sequence[RequirementCheck] = ()) -> MarginResult:
     """The robust margin rho* of a case (certified bracket), what ends it, and the decay rate.
 
     Parameters
@@ -129,6 +131,9 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
         them for rho* (as many again, of half the boxes, for the decay rate).
     max_seconds
         A wall-clock safety stop, reported when it fires (``safety_stop``).
+    known
+        Requirements of the case already decided directly (:func:`check_requirements`): a
+        bracket that leaves one open uses that decision instead of deciding it again.
 
     Examples
     --------
@@ -145,9 +150,10 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
     decay = None
     if with_decay:
         # the shifted family's decisions are the dearer ones (larger coefficients): half the boxes
-        decay = decay_rate(family, getattr(requirements, "decay_rate", None), max_boxes=max(max_boxes // 2, 1),
+        decay = decay_rate(family, getattr(requirements, "decay_rate", None),
+                           max_boxes=max(max_boxes // 2, 1),
                            max_tests=max_tests, max_seconds=max_seconds,
-                           requirement_boxes=requirement_boxes)
+                           requirement_boxes=requirement_boxes, known=known)
     req = getattr(requirements, "margin", None)
     scaling = Scaling.everything(family)
     tol = Fraction(rel_tol if rel_tol is not None else (1e-9 if family.structure == "independent" else 1e-6))
@@ -161,8 +167,8 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
                 min(x for x in (bracket.upper, limit.upper) if x is not None)
             outcome = requirement_outcome(req, None, bracket.lower, certified_upper)
             if outcome is Outcome.OPEN:  # the bracket does not decide it: decide it directly
-                direct = decide_requirement(family, "margin", req, requirement_boxes,
-                                            max(work.deadline - time.perf_counter(), 0.01))
+                direct = reuse_or_decide(known, family, "margin", req, requirement_boxes,
+                                         max(work.deadline - time.perf_counter(), 0.01))
                 outcome = requirement_outcome(req, direct.direct, bracket.lower, certified_upper)
                 # the bracket agrees with the direct decision
                 if direct.direct is Verdict.STABLE and bracket.lower < req:

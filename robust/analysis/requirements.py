@@ -3,6 +3,7 @@ check, margin and the report all use (so that they give the same outcome)."""
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 
@@ -12,7 +13,8 @@ from .outcomes import BoxProblem, Outcome, Verdict, box_problem, requirement_out
 from .scaling import Scaling
 from .verdict import Witness, decide
 
-__all__ = ["DEFAULT_REQUIREMENT_BOXES", "RequirementCheck", "check_requirements", "decide_requirement"]
+__all__ = ["DEFAULT_REQUIREMENT_BOXES", "RequirementCheck", "check_requirements", "decide_requirement",
+           "reuse_or_decide"]
 
 #: The box budget of one requirement's direct decision, the same in every command.
 DEFAULT_REQUIREMENT_BOXES = 5000
@@ -79,6 +81,17 @@ def decide_requirement(family: UncertainPolynomial, name: str, required: Fractio
         raise ValueError(f"unknown requirement {name!r}")
     return RequirementCheck(name, required, res.verdict, requirement_outcome(required, res.verdict),
                             res.witness, None, res.safety_stop)
+
+
+def reuse_or_decide(known: Sequence[RequirementCheck], family: UncertainPolynomial, name: str,
+                    required: Fraction, max_boxes: int = DEFAULT_REQUIREMENT_BOXES,
+                    max_seconds: float = 600.0) -> RequirementCheck:
+    """The direct decision of a requirement: one already made (in ``known``, for the same
+    requirement and value, by :func:`check_requirements` of the same case) or a new one."""
+    for check in known:
+        if check.name == name and check.required == required:
+            return check
+    return decide_requirement(family, name, required, max_boxes, max_seconds)
 
 
 def check_requirements(case, max_seconds: float = 600.0, max_boxes: int = DEFAULT_REQUIREMENT_BOXES

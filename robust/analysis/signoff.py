@@ -107,7 +107,9 @@ def analyse(case: Case, *, max_seconds: float = 600.0, max_boxes: int = DEFAULT_
         say("requirements: deciding them directly")
         requirements = check_requirements(case, max_seconds=left())
     say("margin: robust margin and decay rate")
-    margins = margin(case, max_seconds=left(), max_boxes=search_boxes, max_tests=search_tests)
+    # the requirements decided above are not decided again when a bracket leaves them open
+    margins = margin(case, max_seconds=left(), max_boxes=search_boxes, max_tests=search_tests,
+                     known=requirements)
     say("rank: per-parameter margins")
     ranking = rank(case, max_seconds=left(), max_boxes=max(search_boxes // 2, 1),
                    max_tests=max(search_tests // 3, 1))
