@@ -25,6 +25,8 @@ from .errors import RobustError
 #: The example polynomial ``robust routh`` analyses when given none: the closed loop of a
 #: small speed-controlled fan (invented for the demo).
 EXAMPLE_POLYNOMIAL = "s^4 + 6*s^3 + 13.5*s^2 + 12*s + 4.2"
+#: routh --discrete without a polynomial: (z - 0.5)(z^2 - 0.8 z + 0.2), every root inside |z| < 1
+EXAMPLE_DISCRETE = "z^3 - 1.3*z^2 + 0.6*z - 0.1"
 
 
 #: Exit code of an interrupted command (128 + SIGINT, as shells report it).
@@ -147,13 +149,20 @@ class _PolynomialCommand(click.Command):
 @click.option("--coeffs", help='Coefficients highest power first, e.g. "1, 2, 3".')
 @click.option("--shift", "sigma", default="0", show_default=True,
               help="Count roots relative to the line Re(s) = -SIGMA.")
+@click.option("--discrete", is_flag=True,
+              help="A polynomial in z: the Schur-Cohn table and the roots inside, on and outside "
+                   "the unit circle (or the circle of --radius).")
+@click.option("--radius", default="1", show_default=True,
+              help="With --discrete: count relative to the circle |z| = RADIUS.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, as_json: bool) -> None:
+def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, discrete: bool, radius: str,
+                  as_json: bool) -> None:
     """Exact Routh array of POLYNOMIAL (an expression in s) and its root counts.
 
     Without POLYNOMIAL or --coeffs, a built-in example is used. A polynomial may start
     with a minus sign, as in robust routh "-(s+1)*(s-2)"; after -- everything is the
-    polynomial.
+    polynomial. With --discrete the polynomial is in z, and the table is the Schur-Cohn
+    reduction for the unit circle.
 
     Exit codes: 0 the table was computed (whatever the roots), 2 bad input.
     """
@@ -163,12 +172,11 @@ def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, as_jso
 
     if polynomial is not None and coeffs is not None:
         raise InputError("routh", "give either POLYNOMIAL or --coeffs, not both")
+    if discrete:
+        _discrete_routh(polynomial, coeffs, sigma, radius, as_json)
+        return
     if coeffs is not None:
-        items = [c.strip() for c in coeffs.replace(";", ",").split(",")]
-        if any(not c for c in items):
-            raise InputError("--coeffs", "empty coefficient in the list",
-                             'numbers separated by commas, e.g. "1, 2.5, 3"', coeffs)
-        source: object = items
+        source: object = _coefficient_items(coeffs)
     else:
         source = polynomial if polynomial is not None else EXAMPLE_POLYNOMIAL
     table = routh_table(source, shift=sigma)
@@ -178,6 +186,39 @@ def routh_command(polynomial: str | None, coeffs: str | None, sigma: str, as_jso
         # with a shift, the plain polynomial's counts tell "unstable" from "slower than asked"
         unshifted = routh_table(source).roots if table.shift else None
         click.echo(render_table(table, unshifted))
+
+
+def _discrete_routh(polynomial: str | None, coeffs: str | None, sigma: str, radius: str,
+                    as_json: bool) -> None:
+    """routh --discrete: the Schur-Cohn table and the counts relative to |z| = radius."""
+    from .errors import InputError
+    from .exact.numbers import to_fraction
+    from .model.forms import discrete_table
+    from .render.text import render_schur_cohn
+
+    if to_fraction(sigma, "--shift") != 0:
+        raise InputError("--shift", "applies to the s-plane, not with --discrete",
+                         "--radius R to count relative to the circle |z| = R")
+    r = to_fraction(radius, "--radius")
+    if r <= 0:
+        raise InputError("--radius", "must be positive", "a number such as 0.9", radius)
+    source = _coefficient_items(coeffs) if coeffs is not None else \
+        (polynomial if polynomial is not None else EXAMPLE_DISCRETE)
+    result = discrete_table(source, r)
+    if as_json:
+        _emit_json(result.as_dict())
+    else:
+        click.echo(render_schur_cohn(result.coefficients, result.table, result.counts, r))
+
+
+def _coefficient_items(coeffs: str) -> list[str]:
+    from .errors import InputError
+
+    items = [c.strip() for c in coeffs.replace(";", ",").split(",")]
+    if any(not c for c in items):
+        raise InputError("--coeffs", "empty coefficient in the list",
+                         'numbers separated by commas, e.g. "1, 2.5, 3"', coeffs)
+    return items
 
 
 def _load(case: str):
@@ -306,22 +347,14 @@ def verify_command(certificate: str, case: str | None, as_json: bool) -> None:
 
     Exit codes: 0 VALID, 1 INVALID (the first piece that fails is named), 2 bad input.
     """
+    from .render.text import render_verification
     from .verify import verify_file
 
     result = verify_file(certificate, case)
     if as_json:
         _emit_json(result.as_dict())
-    elif result.valid:
-        done = "the witness re-checked" if result.verdict == "unstable" else \
-            f"{result.pieces} piece(s) re-checked"
-        click.echo(f"VALID: {result.verdict}; {done}. Proven: {result.statement}.")
     else:
-        failed = result.failed or {}
-        where = "" if failed.get("piece") is None else f" at piece {failed['piece']}"
-        box = failed.get("box")
-        box_text = "" if not box else \
-            " (" + ", ".join(f"{n} in [{a}, {b}]" for n, (a, b) in box.items()) + ")"
-        click.echo(f"INVALID{where}: {failed.get('reason', 'no reason given')}{box_text}")
+        click.echo(render_verification(result))
     sys.exit(0 if result.valid else 1)
 
 

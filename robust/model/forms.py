@@ -10,17 +10,20 @@ parse_formula`. Every product is paid for from one work account (:mod:`robust.ex
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import dataclass
 from fractions import Fraction
 from math import lcm
 
 from ..errors import InputError
 from ..exact import routh as _routh
 from ..exact import sparse
+from ..exact.numbers import format_fraction
+from ..exact.regions import DiskCounts, SchurCohnTable, disk_counts, schur_cohn_table
 from ..exact.routh import RouthTable
 from .expr import ParsedFormula, polynomial_coefficients
 
-__all__ = ["as_coefficients", "coefficients_polynomial", "expression_polynomial",
-           "loop_polynomial", "routh_table"]
+__all__ = ["DiscreteTable", "as_coefficients", "coefficients_polynomial", "discrete_table",
+           "expression_polynomial", "loop_polynomial", "routh_table"]
 
 Quotient = tuple[dict, dict]  # sparse numerator, sparse denominator
 
@@ -127,3 +130,44 @@ def routh_table(poly_or_coeffs: object, shift: object = 0, variable: str = "s") 
     True
     """
     return _routh.routh_table(as_coefficients(poly_or_coeffs, variable), shift)
+
+
+@dataclass(frozen=True, slots=True)
+class DiscreteTable:
+    """A polynomial in z against the circle |z| = radius: the Schur-Cohn table (of p(radius z),
+    for the unit circle) and the exact root counts."""
+
+    coefficients: tuple[Fraction, ...]
+    radius: Fraction
+    table: SchurCohnTable
+    counts: DiskCounts
+
+    @property
+    def stable(self) -> bool:
+        """Every root strictly inside the circle."""
+        return self.counts.inside == len(self.coefficients) - 1
+
+    def as_dict(self) -> dict[str, object]:
+        """JSON: rows [{power, entries}] and roots {inside, on_circle, outside} (DESIGN.md
+        section 5), with the coefficients, radius, conditions and verdict."""
+        return {"variable": "z", "degree": len(self.coefficients) - 1,
+                "radius": format_fraction(self.radius),
+                "coefficients": [format_fraction(c) for c in self.coefficients],
+                "rows": [{"power": len(row) - 1, "entries": [format_fraction(c) for c in row]}
+                         for row in self.table.rows],
+                "schur_conditions": list(self.table.conditions),
+                "roots": self.counts.as_dict(), "stable": self.stable}
+
+
+def discrete_table(poly_or_coeffs: object, radius: Fraction = Fraction(1)) -> DiscreteTable:
+    """The Schur-Cohn table and root counts of a polynomial in z (text or coefficients).
+
+    Examples
+    --------
+    >>> discrete_table("(z - 0.5)*(z + 2)").counts
+    DiskCounts(inside=1, on_circle=0, outside=1)
+    """
+    values = as_coefficients(poly_or_coeffs, "z")
+    n = len(values) - 1
+    scaled = [c * radius ** (n - i) for i, c in enumerate(values)]
+    return DiscreteTable(values, radius, schur_cohn_table(scaled), disk_counts(values, radius))

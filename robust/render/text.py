@@ -344,3 +344,54 @@ def render_requirements(requirements) -> str:
             line += f" ({r.problem.detail})"
         lines.append(line)
     return "\n".join(lines)
+
+
+def render_schur_cohn(coefficients, table, counts, radius) -> str:
+    """routh --discrete: p(z), the Schur-Cohn rows with their conditions, the counts relative
+    to the circle and the conclusion in discrete-time words."""
+    from ..exact.numbers import format_fraction
+    from ..exact.routh import _format_polynomial  # display helper shared with the s tables
+
+    n = len(coefficients) - 1
+    circle = "|z| = 1" if radius == 1 else f"|z| = {format_fraction(radius)}"
+    lines = ["p(z) = " + _format_polynomial(coefficients, "z")]
+    if radius != 1:
+        lines.append(f"(the table is that of p({format_fraction(radius)}*z), for the circle {circle})")
+    lines.append("")
+    cells = [[format_entry(c) for c in row] for row in table.rows]
+    width = max((len(c) for row in cells for c in row), default=1)
+    label_width = len(f"p{n}")
+    for k, (row, row_cells) in enumerate(zip(table.rows, cells, strict=True)):
+        label = f"p{len(row) - 1}".ljust(label_width)
+        note = ""
+        if k < len(table.conditions):
+            holds = table.conditions[k]
+            note = "   |leading| > |constant|" if holds else "   |leading| <= |constant|: stop"
+        lines.append(f"{label} | " + "  ".join(c.rjust(width) for c in row_cells) + note)
+    lines.append("")
+    lines.append("(Schur-Cohn reduction: each row is (leading * p - constant * reversed p) / z of the "
+                 "row above; every root lies inside the circle exactly when every row has "
+                 "|leading| > |constant|)")
+    lines.append(f"{counts.inside} root(s) inside {circle}, {counts.on_circle} on it, "
+                 f"{counts.outside} outside.")
+    if counts.inside == n:
+        lines.append(f"Conclusion: stable in discrete time (every root inside {circle}).")
+    elif counts.outside == 0:
+        lines.append(f"Conclusion: not asymptotically stable: {counts.on_circle} root(s) on {circle}.")
+    else:
+        lines.append(f"Conclusion: unstable in discrete time: {counts.outside} root(s) outside {circle}.")
+    return "\n".join(lines)
+
+
+def render_verification(result) -> str:
+    """robust verify: VALID with what is proven, or INVALID with the first piece that fails."""
+    if result.valid:
+        done = "the witness re-checked" if result.verdict == "unstable" else \
+            f"{result.pieces} piece(s) re-checked"
+        return f"VALID: {result.verdict}; {done}. Proven: {result.statement}."
+    failed = result.failed or {}
+    where = "" if failed.get("piece") is None else f" at piece {failed['piece']}"
+    box = failed.get("box")
+    box_text = "" if not box else \
+        " (" + ", ".join(f"{n} in [{a}, {b}]" for n, (a, b) in box.items()) + ")"
+    return f"INVALID{where}: {failed.get('reason', 'no reason given')}{box_text}"
