@@ -25,6 +25,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 
+from ..exact.hurwitz import hurwitz_minor_polynomial
 from ..exact.routh import is_hurwitz
 
 __all__ = ["SegmentResult", "box_edges", "check_segment"]
@@ -51,7 +52,9 @@ def check_segment(p0: Sequence[Fraction], p1: Sequence[Fraction]) -> SegmentResu
     n = len(p0) - 1
     lam_polys = {"origin": _affine(p0[-1], p1[-1]), "infinity": _affine(p0[0], p1[0])}
     if n >= 2:
-        lam_polys["imaginary pair"] = _delta_polynomial(p0, p1)
+        # Delta_(n-1)((1 - l) p0 + l p1): every coefficient is affine in l (ascending here)
+        lam_polys["imaginary pair"] = hurwitz_minor_polynomial(
+            [[b - a, a] for a, b in zip(p0, p1, strict=True)], n - 1)[::-1]
     factors = {}
     for name, coeffs in lam_polys.items():
         if _positive_on_unit_interval(coeffs):
@@ -91,58 +94,6 @@ def check_segment(p0: Sequence[Fraction], p1: Sequence[Fraction]) -> SegmentResu
 def _affine(a: Fraction, b: Fraction) -> list[Fraction]:
     """(1 - l) a + l b as ascending coefficients in l."""
     return [a, b - a]
-
-
-def _determinant(matrix: list[list[Fraction]]) -> Fraction:
-    """Exact determinant by Gaussian elimination on Fractions."""
-    m = [row[:] for row in matrix]
-    size = len(m)
-    det = Fraction(1)
-    for col in range(size):
-        pivot = next((r for r in range(col, size) if m[r][col] != 0), None)
-        if pivot is None:
-            return Fraction(0)
-        if pivot != col:
-            m[col], m[pivot] = m[pivot], m[col]
-            det = -det
-        det *= m[col][col]
-        for r in range(col + 1, size):
-            factor = m[r][col] / m[col][col]
-            if factor:
-                for c in range(col, size):
-                    m[r][c] -= factor * m[col][c]
-    return det
-
-
-def _delta_polynomial(p0: Sequence[Fraction], p1: Sequence[Fraction]) -> list[Fraction]:
-    """Ascending coefficients in l of Delta_(n-1)((1 - l) p0 + l p1).
-
-    Its degree is at most n - 1, so n exact evaluations and Lagrange interpolation give it.
-    """
-    n = len(p0) - 1
-    order = n - 1
-    nodes = [Fraction(j) for j in range(order + 1)]
-    values = []
-    for lam in nodes:
-        c = _combine(p0, p1, lam)
-
-        def a(k: int, c=c) -> Fraction:
-            return c[n - k] if 0 <= k <= n else Fraction(0)
-
-        matrix = [[a(n - (2 * (j + 1) - (i + 1))) for j in range(order)] for i in range(order)]
-        values.append(_determinant(matrix))
-    # Newton divided differences -> power basis
-    coef = list(values)
-    for level in range(1, len(nodes)):
-        for i in range(len(nodes) - 1, level - 1, -1):
-            coef[i] = (coef[i] - coef[i - 1]) / (nodes[i] - nodes[i - level])
-    poly = [Fraction(0)] * len(nodes)
-    for i in range(len(nodes) - 1, -1, -1):
-        # poly = poly * (x - nodes[i]) + coef[i]
-        shifted = [Fraction(0)] + poly[:-1]
-        poly = [shifted[k] - nodes[i] * poly[k] for k in range(len(poly))]
-        poly[0] += coef[i]
-    return poly
 
 
 def _positive_on_unit_interval(ascending: Sequence[Fraction]) -> bool:
