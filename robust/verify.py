@@ -34,15 +34,13 @@ from __future__ import annotations
 
 import json
 import re
-from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 from pathlib import Path
 
 from .errors import InputError
-from .exact import sparse
 from .exact.bernstein import bernstein_patch
-from .exact.hurwitz import MAX_DELTA_DEGREE, MAX_DELTA_PRODUCTS, hurwitz_determinant_terms
+from .exact.hurwitz import MAX_DELTA_DEGREE, MAX_DELTA_PRODUCTS, hurwitz_determinant_in
 from .exact.interval import IntervalPolynomial, kharitonov_test
 from .exact.numbers import from_mpq, mpz
 from .exact.polynomials import MultiPoly, as_intervals
@@ -206,27 +204,6 @@ def _point(record, names, what: str) -> tuple[Fraction, ...]:
     return tuple(_number(record[n], f"{what} {n}") for n in names)
 
 
-def _delta(coefficients: Sequence[MultiPoly], nvars: int) -> MultiPoly:
-    """Delta_(n-1) in the parameters, multiplied out term by term."""
-    n = len(coefficients) - 1
-    packed = []
-    for coefficient in coefficients:
-        packed.append({sum(e << (sparse.BITS * i) for i, e in enumerate(exps)): v
-                       for exps, v in coefficient.terms})
-    work = sparse.Work(MAX_PRODUCTS)
-    total: dict = {}
-    try:
-        for exps, c in hurwitz_determinant_terms(n, n - 1):
-            term = sparse.constant(c)
-            for k, e in enumerate(exps):
-                for _ in range(e):
-                    term = sparse.multiply(term, packed[k], work)
-            sparse.add_into(total, term)
-    except InputError:  # the work account refused
-        raise _Invalid(f"Delta_(n-1) needs more than {MAX_PRODUCTS:,} term products to check") from None
-    return sparse.to_multipoly(total, nvars)
-
-
 def _conditions(data: dict, family, point) -> list[tuple[MultiPoly, dict[int, Fraction]]]:
     coefficients = family.coefficients
     nvars = len(family.names)
@@ -235,7 +212,10 @@ def _conditions(data: dict, family, point) -> list[tuple[MultiPoly, dict[int, Fr
                        f"Delta_(n-1) up to degree {MAX_DEGREE})")
     polys = [coefficients[0], coefficients[-1]]
     if family.degree >= 2:
-        polys.append(_delta(coefficients, nvars))
+        delta = hurwitz_determinant_in(coefficients, nvars)
+        if delta is None:
+            raise _Invalid(f"Delta_(n-1) needs more than {MAX_PRODUCTS:,} term products to check")
+        polys.append(delta)
     records = data.get("conditions")
     if not isinstance(records, list) or len(records) != len(polys):
         raise _Invalid(f"the certificate gives {len(records or [])} conditions, the degree asks {len(polys)}")

@@ -24,12 +24,9 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
-from typing import Any
 
-from ..errors import InputError
-from ..exact import sparse
 from ..exact.bernstein import Patch, bernstein_patch, tensor_size
-from ..exact.hurwitz import MAX_DELTA_DEGREE, MAX_DELTA_PRODUCTS, hurwitz_determinant_terms
+from ..exact.hurwitz import MAX_DELTA_DEGREE, hurwitz_determinant_in
 from ..exact.polynomials import MultiPoly, as_intervals
 from ..exact.routh import is_hurwitz
 from ..model.family import Box, UncertainPolynomial
@@ -39,10 +36,9 @@ __all__ = ["MAX_COEFFICIENTS", "MAX_DEGREE", "Conditions", "SubBoxTest", "hurwit
 #: Above this many Bernstein coefficients per box (all conditions together) the test costs
 #: more than the interval overbound's subdivision saves; the engine keeps Kharitonov then.
 MAX_COEFFICIENTS = 60_000
-#: Highest degree given the test, and the term products allowed when multiplying out
-#: Delta_(n-1) (shared with the certificate checker: robust.exact.hurwitz).
+#: Highest degree given the test (shared with the certificate checker: robust.exact.hurwitz,
+#: which also bounds the term products of multiplying Delta_(n-1) out).
 MAX_DEGREE = MAX_DELTA_DEGREE
-MAX_PRODUCTS = MAX_DELTA_PRODUCTS
 #: Parent patches are handed to the halves (no re-expansion) when this small.
 KEEP_COEFFICIENTS = 4096
 
@@ -85,56 +81,11 @@ class SubBoxTest:
     least: tuple[Fraction, ...] = ()
 
 
-def _to_sparse(poly: MultiPoly) -> dict:
-    out = {}
-    terms: list[tuple[tuple[int, ...], Any]] = list(poly.terms)  # exact rationals (mpq)
-    for exps, c in terms:
-        packed = sum(e << (sparse.BITS * i) for i, e in enumerate(exps))
-        out[packed] = int(c) if c.denominator == 1 else c
-    return out
-
-
 @lru_cache(maxsize=16)
 def _delta(coefficients: tuple[MultiPoly, ...], nvars: int) -> MultiPoly | None:
-    """Delta_(n-1) of the family as a polynomial in the parameters (None: too large).
-    Cached: the margin searches ask for the same family over many boxes."""
-    n = len(coefficients) - 1
-    terms = hurwitz_determinant_terms(n, n - 1)
-    work = sparse.Work(MAX_PRODUCTS)
-    coeffs = [_to_sparse(c) for c in coefficients]
-    products: dict[tuple[int, ...], dict] = {(0,) * (n + 1): sparse.constant(1)}
-
-    def product(exps: tuple[int, ...]) -> dict:
-        cached = products.get(exps)
-        if cached is None:
-            k = max(i for i, e in enumerate(exps) if e)
-            smaller = list(exps)
-            smaller[k] -= 1
-            cached = sparse.multiply(product(tuple(smaller)), coeffs[k], work)
-            products[exps] = cached
-        return cached
-
-    total: dict = {}
-    try:
-        for exps, c in terms:
-            sparse.add_into(total, sparse.scale(product(exps), c))
-    except InputError:  # the work account refused: too large to multiply out here
-        return None
-    return sparse.to_multipoly(total, nvars)
-
-
-def _delta_products(coefficients: Sequence[MultiPoly]) -> int:
-    """An upper bound on the term products of multiplying Delta_(n-1) out, from the number
-    of terms of each coefficient alone (known before anything is multiplied)."""
-    n = len(coefficients) - 1
-    sizes = [len(c.terms) for c in coefficients]
-    total = 0
-    for exps, _ in hurwitz_determinant_terms(n, n - 1):
-        count = 1
-        for k, e in enumerate(exps):
-            count *= sizes[k] ** e
-        total += count
-    return total
+    """Delta_(n-1) of the family in the parameters, None when too large (cached: the margin
+    searches ask for the same family over many boxes)."""
+    return hurwitz_determinant_in(coefficients, nvars)
 
 
 def hurwitz_conditions(family: UncertainPolynomial, point: Sequence[Fraction],
@@ -149,8 +100,6 @@ def hurwitz_conditions(family: UncertainPolynomial, point: Sequence[Fraction],
         return None
     polys = [coefficients[0], coefficients[-1]]
     if family.degree >= 2:
-        if _delta_products(coefficients) > MAX_PRODUCTS:
-            return None  # known before multiplying anything out
         delta = _delta(tuple(coefficients), nvars)
         if delta is None:
             return None

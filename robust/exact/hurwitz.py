@@ -23,8 +23,11 @@ from .numbers import from_mpq, mpq, to_mpq
 if TYPE_CHECKING:
     import sympy as sp
 
-__all__ = ["MAX_DELTA_DEGREE", "MAX_DELTA_PRODUCTS", "determinant", "hurwitz_determinant_terms",
-           "hurwitz_matrix", "hurwitz_minor_polynomial"]
+    from .polynomials import MultiPoly
+
+__all__ = ["MAX_DELTA_DEGREE", "MAX_DELTA_PRODUCTS", "delta_products", "determinant",
+           "hurwitz_determinant_in", "hurwitz_determinant_terms", "hurwitz_matrix",
+           "hurwitz_minor_polynomial"]
 
 
 def hurwitz_matrix(coefficients: Sequence[sp.Expr], order: int) -> sp.Matrix:
@@ -182,3 +185,53 @@ def hurwitz_minor_polynomial(coefficients: Sequence[Sequence[Fraction]], order: 
     while len(result) > 1 and result[0] == 0:
         result = result[1:]
     return [from_mpq(c) for c in result]
+
+
+def delta_products(coefficients: Sequence[MultiPoly]) -> int:
+    """An upper bound on the term products of multiplying Delta_(n-1) out in the parameters,
+    from the number of terms of each coefficient alone (known before anything is multiplied)."""
+    n = len(coefficients) - 1
+    sizes = [len(c.terms) for c in coefficients]
+    total = 0
+    for exps, _ in hurwitz_determinant_terms(n, n - 1):
+        count = 1
+        for k, e in enumerate(exps):
+            count *= sizes[k] ** e
+        total += count
+    return total
+
+
+def hurwitz_determinant_in(coefficients: Sequence[MultiPoly], nvars: int) -> MultiPoly | None:
+    """Delta_(n-1) of a polynomial whose coefficients a_n .. a_0 are exact polynomials in
+    ``nvars`` parameters, multiplied out exactly; None above MAX_DELTA_DEGREE or when it
+    would take more than MAX_DELTA_PRODUCTS term products (decided before multiplying).
+
+    Products of the coefficients are shared between the generic determinant's terms (each
+    monomial in a_n .. a_0 built from a smaller one times one coefficient)."""
+    from ..errors import InputError
+    from . import sparse
+
+    n = len(coefficients) - 1
+    if n > MAX_DELTA_DEGREE or n < 1 or delta_products(coefficients) > MAX_DELTA_PRODUCTS:
+        return None
+    work = sparse.Work(MAX_DELTA_PRODUCTS)
+    packed = [sparse.from_multipoly(c) for c in coefficients]
+    products: dict[tuple[int, ...], dict] = {(0,) * (n + 1): sparse.constant(1)}
+
+    def product(exps: tuple[int, ...]) -> dict:
+        cached = products.get(exps)
+        if cached is None:
+            k = max(i for i, e in enumerate(exps) if e)
+            smaller = list(exps)
+            smaller[k] -= 1
+            cached = sparse.multiply(product(tuple(smaller)), packed[k], work)
+            products[exps] = cached
+        return cached
+
+    total: dict = {}
+    try:
+        for exps, c in hurwitz_determinant_terms(n, n - 1):
+            sparse.add_into(total, sparse.scale(product(exps), c))
+    except InputError:  # the work account refused (the bound above is not exact)
+        return None
+    return sparse.to_multipoly(total, nvars)

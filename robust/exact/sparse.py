@@ -18,14 +18,15 @@ from __future__ import annotations
 import sys
 from collections.abc import Mapping, Sequence
 from math import lcm
+from typing import Any
 
 from ..errors import InputError
 from .numbers import gcd, mpq
 from .polynomials import MultiPoly
 
-__all__ = ["BITS", "Work", "add", "add_into", "constant", "degree_in", "is_monomial", "is_zero",
-           "monomial_lcm", "monomial_quotient", "multiply", "negate", "power", "scale", "split_by",
-           "to_multipoly", "variable"]
+__all__ = ["BITS", "Work", "add", "add_into", "constant", "degree_in", "from_multipoly", "is_monomial",
+           "is_zero", "monomial_lcm", "monomial_quotient", "multiply", "negate", "power", "scale",
+           "split_by", "to_multipoly", "variable"]
 
 BITS = 16
 _MASK = (1 << BITS) - 1
@@ -183,6 +184,15 @@ def degree_in(p: Sparse, index: int) -> int:
 def _unpack(m: int, nvars: int) -> tuple[int, ...]:
     # the packed integer's bytes are the exponents, BITS = 16 bits each (an unsigned short)
     return tuple(memoryview(m.to_bytes(2 * nvars, sys.byteorder)).cast("H"))
+
+
+def from_multipoly(poly: MultiPoly) -> Sparse:
+    """The packed form of a :class:`MultiPoly` (integers kept as ints, other rationals as mpq)."""
+    out: Sparse = {}
+    terms: list[tuple[tuple[int, ...], Any]] = list(poly.terms)  # exact rationals (mpq)
+    for exps, c in terms:
+        out[sum(e << (BITS * i) for i, e in enumerate(exps))] = int(c) if c.denominator == 1 else c
+    return out
 
 
 def to_multipoly(p: Sparse, nvars: int, keep: Sequence[int] | None = None) -> MultiPoly:
