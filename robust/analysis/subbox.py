@@ -39,8 +39,6 @@ MAX_COEFFICIENTS = 60_000
 #: Highest degree given the test (shared with the certificate checker: robust.exact.hurwitz,
 #: which also bounds the term products of multiplying Delta_(n-1) out).
 MAX_DEGREE = MAX_DELTA_DEGREE
-#: Parent patches are handed to the halves (no re-expansion) when this small.
-KEEP_COEFFICIENTS = 4096
 
 LABELS = ("leading coefficient", "constant coefficient", "Hurwitz determinant Delta_(n-1)")
 
@@ -75,7 +73,7 @@ class SubBoxTest:
     status: str
     point: tuple[Fraction, ...] | None
     blame: int | None
-    patches: tuple[Patch, ...] | None
+    patches: tuple[Patch, ...]
     failing: str = ""
     #: the least Bernstein coefficient of each condition over the box (a proof's data)
     least: tuple[Fraction, ...] = ()
@@ -128,7 +126,7 @@ def try_box(conditions: Conditions, family: UncertainPolynomial, box: Box,
         patches = tuple(bernstein_patch(p, box.intervals) for p in conditions.polys)
     failing = [(label, patch) for label, patch in zip(conditions.labels, patches, strict=True)
                if not patch.positive()]
-    keep = tuple(patches) if sum(p.tensor.size for p in patches) <= KEEP_COEFFICIENTS else None
+    keep = tuple(patches)  # for the halves (the subdivision decides whether to hold them)
     if not failing:
         check_point = box.low
         if is_hurwitz(family.coefficients_at(check_point)):

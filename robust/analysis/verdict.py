@@ -561,7 +561,7 @@ def _subdivide(family, box: Box, budget: _Budget, progress: Progress | None, res
                               proven=proven, depth=max_depth)
             i = blame if blame is not None else _split_index(family, sub, kh, directions)
             halves = sub.split(i)
-            if conditions is not None and inherit is not None:
+            if conditions is not None:
                 # de Casteljau: the halves' patches without a new expansion, while the patches
                 # waiting in the heap stay within MAX_STORED coefficients (else re-expanded)
                 size = _patch_size(inherit)
