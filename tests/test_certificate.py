@@ -72,16 +72,10 @@ def test_a_partition_of_bernstein_pieces_is_confirmed_and_its_corners_agree_with
 
 
 def _piece_corners(data: dict, case):
-    names = list(case.names)
-    stack = [([Fraction(data["box"][n][0]) for n in names], [Fraction(data["box"][n][1]) for n in names])]
-    for node in data["tree"]:
-        lo, hi = stack.pop()
-        if "split" in node:
-            i = names.index(node["split"])
-            mid = (lo[i] + hi[i]) / 2
-            stack += [([*lo[:i], mid, *lo[i + 1:]], hi), (lo, [*hi[:i], mid, *hi[i + 1:]])]
-        else:
-            yield tuple(lo)
+    """The lowest corner of every piece of the certificate."""
+    from robust.analysis.certificate import leaves
+
+    return (tuple(low[n] for n in case.names) for _, low, _ in leaves(data))
 
 
 def test_kharitonov_pieces_are_confirmed_and_agree_with_sympy(tmp_path):

@@ -24,6 +24,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from math import comb
 
+from . import intpoly
 from .routh import routh_table
 
 __all__ = ["DiskCounts", "SchurCohnTable", "disk_counts", "disk_to_half_plane", "schur_cohn_table"]
@@ -42,18 +43,9 @@ class DiskCounts:
         return {"inside": self.inside, "on_circle": self.on_circle, "outside": self.outside}
 
 
-def _binomial_row(k: int, sign: int) -> list[int]:
-    """Coefficients of (1 + sign w)^k, lowest power first."""
-    return [comb(k, j) * sign**j for j in range(k + 1)]
-
-
-def _times(p: list, q: list) -> list:
-    out = [0] * (len(p) + len(q) - 1)
-    for i, a in enumerate(p):
-        if a:
-            for j, b in enumerate(q):
-                out[i + j] += a * b
-    return out
+def _binomial_row(k: int, sign: int) -> tuple:
+    """(1 + sign w)^k, ascending powers."""
+    return intpoly.trim(comb(k, j) * sign**j for j in range(k + 1))
 
 
 def disk_to_half_plane(coefficients: Sequence[Fraction], radius: Fraction = Fraction(1)) -> list[Fraction]:
@@ -66,10 +58,10 @@ def disk_to_half_plane(coefficients: Sequence[Fraction], radius: Fraction = Frac
         k = n - i  # a is the coefficient of z^k
         if not a:
             continue
-        term = _times(_binomial_row(k, 1), _binomial_row(n - k, -1))
+        term = intpoly.mul(_binomial_row(k, 1), _binomial_row(n - k, -1))
         scale = a * Fraction(radius) ** k
         for j, c in enumerate(term):
-            total[j] += scale * c
+            total[j] += scale * int(c)
     return total[::-1]
 
 
