@@ -439,9 +439,7 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
     else:
         click.echo(render_margin(loaded, result))
     # a requirement that is not proven met (failed or undecided) fails the command, as in check
-    failed = (result.outcome not in (None, Outcome.PASS)) or (
-        result.decay is not None and result.decay.outcome not in (None, Outcome.PASS))
-    sys.exit(1 if failed else 0)
+    sys.exit(1 if any(outcome is not Outcome.PASS for _, _, outcome in result.outcomes()) else 0)
 
 
 @main.command("rank")

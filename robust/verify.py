@@ -40,7 +40,7 @@ from pathlib import Path
 
 from .errors import InputError
 from .exact.bernstein import bernstein_patch
-from .exact.hurwitz import MAX_DELTA_DEGREE, MAX_DELTA_PRODUCTS, hurwitz_determinant_in
+from .exact.hurwitz import MAX_DELTA_DEGREE, MAX_DELTA_PRODUCTS, hurwitz_determinant_in, with_fixed_parts
 from .exact.interval import IntervalPolynomial, kharitonov_test
 from .exact.numbers import from_mpq, mpz
 from .exact.polynomials import MultiPoly, as_intervals
@@ -204,8 +204,9 @@ def _point(record, names, what: str) -> tuple[Fraction, ...]:
     return tuple(_number(record[n], f"{what} {n}") for n in names)
 
 
-def _conditions(data: dict, family, point) -> list[tuple[MultiPoly, dict[int, Fraction]]]:
-    coefficients = family.coefficients
+def _conditions(data: dict, family, point, low, high) -> list[tuple[MultiPoly, dict[int, Fraction]]]:
+    # parts the certified box holds at one value enter as that value (every piece lies in it)
+    coefficients = with_fixed_parts(family.coefficients, low, high)
     nvars = len(family.names)
     if family.degree > MAX_DEGREE:  # the engine writes no Bernstein piece above it either
         raise _Invalid(f"Bernstein pieces for degree {family.degree} (the checker expands "
@@ -278,7 +279,7 @@ def _check_tree(data: dict, family, low, high, verdict: str) -> tuple[int, int]:
             _kharitonov_piece(family, lo, hi, pieces, where)
         elif method == "bernstein":
             if conditions is None:
-                conditions = _conditions(data, family, point)
+                conditions = _conditions(data, family, point, low, high)
                 for _, fixed in conditions:  # the engine fixes at ends of the certified box
                     if any(not low[i] <= v <= high[i] for i, v in fixed.items()):
                         raise _Invalid("a condition's fixed value lies outside the box")

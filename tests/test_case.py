@@ -110,8 +110,26 @@ def _thermal():
     return p, nominal
 
 
+def _digital_current_loop():
+    L, Vin, R, Kp, Ki = sp.symbols("L Vin R Kp Ki")
+    Ts = Q("0.00001")
+    # the header's derivation, in z (written with the symbol S here)
+    p = S * (S - 1 + R * Ts / L) * (S - 1) * L + Vin * Ts * (Kp * (S - 1) + Ki * Ts * S)
+    nominal = {L: Q("22e-6"), Vin: 12, R: (Q("0.03") + Q("0.12")) / 2, Kp: Q("0.03"), Ki: 300}
+    return p, nominal
+
+
+def _servo_lead():
+    Km, Tm, Te = sp.symbols("Km Tm Te")
+    p = S * (Tm * S + 1) * (Te * S + 1) * (Q("0.004") * S + 1) + 8 * Km * (Q("0.025") * S + 1)
+    nominal = {Km: 20, Tm: Q("0.05"), Te: Q("0.002")}
+    return p, nominal
+
+
 # expected verdict (from each file's header) and the rebuilt polynomial
 EXPECTED = {
+    "digital_current_loop": ("stable", _digital_current_loop),
+    "servo_lead_criteria": ("stable", _servo_lead),
     "active_filter": ("stable", _active_filter),
     "buck_voltage_loop": ("stable", _buck),
     "interval_measured": ("stable", _interval_measured),
@@ -156,7 +174,7 @@ def test_nominal_coefficients_equal_an_independent_sympy_expansion(path):
     # the nominal point itself is the one the file states
     assert case.family.point_dict(fam.nominal) == {str(k): F(str(v)) for k, v in values.items()}
     ref = _sympy_coefficients(p, values)  # sympy (Meurer et al. 2017)
-    got = list(fam.coefficients_at(fam.nominal))
+    got = list(fam.written_at(fam.nominal))  # the polynomial in the case's own variable
     assert len(got) == len(ref)
     factor = got[0] / ref[0]
     assert factor > 0
@@ -170,14 +188,15 @@ def test_nominal_coefficients_equal_an_independent_sympy_expansion(path):
         point = tuple(lo + (hi - lo) * F(rng.randint(0, 20), 20) for lo, hi in fam.box.intervals)
         at = {symbols[n]: R(v.numerator, v.denominator) for n, v in zip(fam.names, point, strict=True)}
         ref_here = _sympy_coefficients(p, at)
-        assert list(fam.coefficients_at(point)) == [factor * c for c in ref_here]
+        assert list(fam.written_at(point)) == [factor * c for c in ref_here]
 
 
 @pytest.mark.parametrize("stem, kind", [
     ("active_filter", "multilinear"), ("buck_voltage_loop", "multilinear"),
     ("interval_measured", "independent"), ("interval_unstable", "independent"),
     ("maglev_lead", "multilinear"), ("servo_pid", "polynomial"), ("thermal_pi_affine", "affine"),
-    ("isolation_mount", "multilinear"),
+    ("isolation_mount", "multilinear"), ("servo_lead_criteria", "multilinear"),
+    ("digital_current_loop", "multilinear"),
 ])
 def test_case_dependence_class_is_the_one_the_header_derives(stem, kind):
     """Each case's dependence class is the one its header comment derives."""
@@ -282,10 +301,22 @@ def test_relative_tolerance():
 
 
 def test_another_variable_name():
-    """variable = "z" makes z the polynomial variable."""
-    case = parse_case(_case("nominal = 2\ntolerance = 0", 'expression = "z^2 + R*z + 1"',
+    """variable = "q" makes q the polynomial variable of a continuous-time case."""
+    case = parse_case(_case("nominal = 2\ntolerance = 0", 'expression = "q^2 + R*q + 1"',
+                            'variable = "q"\n'), "q.toml")
+    assert case.variable == "q" and case.family.coefficients_at((F(2),)) == (F(1), F(2), F(1))
+    assert not case.discrete
+
+
+def test_variable_z_is_discrete_time_and_keeps_the_written_polynomial():
+    """variable = "z": the written polynomial in z is kept, and the family decided is its
+    bilinear image (1 - w)^n p((1 + w)/(1 - w)), worked by hand for z^2 + R z + 1/4 at R = 1:
+    (1 + w)^2 + (1 + w)(1 - w) + (1 - w)^2 / 4 = (1/4) w^2 + (3/2) w + 9/4."""
+    case = parse_case(_case("nominal = 1\ntolerance = 0", 'expression = "4*z^2 + 4*R*z + 1"',
                             'variable = "z"\n'), "z.toml")
-    assert case.variable == "z" and case.family.coefficients_at((F(2),)) == (F(1), F(2), F(1))
+    assert case.discrete
+    assert case.family.written_at((F(1),)) == (F(4), F(4), F(1))
+    assert case.family.coefficients_at((F(1),)) == (F(1), F(6), F(9))  # 4 times the hand result
 
 
 def test_loop_form_is_den_p_den_c_plus_num_p_num_c():

@@ -34,7 +34,9 @@ from fractions import Fraction
 from ..exact.numbers import json_float, short_between
 from ..exact.routh import routh_table
 from ..model.family import UncertainPolynomial
+from ..model.case import REQUIREMENTS
 from .bracket import Bracket, Work, bisect_margin, float_down, float_up, just_below, scaled_tester
+from .criteria import REQUIREMENT_OF, Criterion, criteria_for, measure_criterion
 from .crossings import DEFAULT_CAP, exact_interval_margin, ray_upper_bound, tightener
 from .decay import DecayResult, decay_rate
 from .limits import ScaleEnd, end_of_scaling
@@ -62,11 +64,34 @@ class MarginResult:
     seconds: float
     direct: RequirementCheck | None = None
     safety_stop: bool = False
+    #: Gain and phase margins, damping ratio, spectral radius (:mod:`.criteria`).
+    criteria: tuple[Criterion, ...] = ()
 
     @property
     def passed(self) -> bool | None:
         """The margin requirement: True, False or None (undecided or none set)."""
         return None if self.outcome is None else self.outcome.passed
+
+    def outcomes(self) -> tuple[tuple[str, Fraction, Outcome], ...]:
+        """(requirement, required value, outcome) for every requirement this search decided,
+        in the order of robust.model.case.REQUIREMENTS; the gain margin holds when both
+        directions hold."""
+        out: dict[str, tuple[Fraction, Outcome]] = {}
+        if self.requirement is not None and self.outcome is not None:
+            out["margin"] = (self.requirement, self.outcome)
+        if self.decay is not None and self.decay.requirement is not None and self.decay.outcome is not None:
+            out["decay_rate"] = (self.decay.requirement, self.decay.outcome)
+        worse = (Outcome.FAIL, Outcome.OPEN, Outcome.PASS)
+        for criterion in self.criteria:
+            if criterion.requirement is None or criterion.outcome is None:
+                continue
+            name = REQUIREMENT_OF[criterion.measure.name]
+            if name in out:  # the other direction of the gain margin: the worse outcome rules
+                criterion_outcome = min(out[name][1], criterion.outcome, key=worse.index)
+            else:
+                criterion_outcome = criterion.outcome
+            out[name] = (criterion.requirement, criterion_outcome)
+        return tuple((name, *out[name]) for name in REQUIREMENTS if name in out)
 
     def as_dict(self) -> dict[str, object]:
         """JSON per DESIGN.md section 5: margin {lower, upper}, exact, limit, decay_rate."""
@@ -90,6 +115,11 @@ class MarginResult:
                                   "upper": None if self.decay.bracket.upper is None
                                   else float_up(self.decay.bracket.upper)}
             data["decay_rate_detail"] = self.decay.as_dict()
+        for criterion in self.criteria:
+            if criterion.measure.name == "gain_margin_db_lower_direction":
+                data.setdefault("gain_margin_db", {})["lower_direction"] = criterion.as_dict()
+            else:
+                data[criterion.measure.name] = {**criterion.as_dict(), **data.get(criterion.measure.name, {})}
         return data
 
 
@@ -117,7 +147,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
            max_seconds: float = 600.0, max_boxes: int = DEFAULT_MARGIN_BOXES,
            max_tests: int = DEFAULT_MARGIN_TESTS, with_decay: bool = True,
            requirement_boxes: int = DEFAULT_REQUIREMENT_BOXES,
-           known: Sequence[RequirementCheck] = ()) -> MarginResult:
+           known: Sequence[RequirementCheck] = (), with_criteria: bool = True) -> MarginResult:
     """The robust margin rho* of a case (certified bracket), what ends it, and the decay rate.
 
     Parameters
@@ -134,6 +164,10 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
     known
         Requirements of the case already decided directly (:func:`check_requirements`): a
         bracket that leaves one open uses that decision instead of deciding it again.
+    with_criteria
+        Also bracket the gain and phase margins (loops), the damping ratio and the spectral
+        radius (discrete time): :mod:`.criteria`, each with half the boxes and as many
+        decisions.
 
     Examples
     --------
@@ -148,7 +182,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
     cap = Fraction(cap) if not isinstance(cap, Fraction) else cap
     work = Work(max_tests, started + max_seconds)
     decay = None
-    if with_decay:
+    if with_decay and not family.discrete:  # discrete time: the spectral radius instead
         # the shifted family's decisions are the dearer ones (larger coefficients): half the boxes
         decay = decay_rate(family, getattr(requirements, "decay_rate", None),
                            max_boxes=max(max_boxes // 2, 1),
@@ -159,6 +193,18 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
     tol = Fraction(rel_tol if rel_tol is not None else (1e-9 if family.structure == "independent" else 1e-6))
 
     test = scaled_tester(family, scaling.box, work, max_boxes)
+
+    criteria: tuple[Criterion, ...] = ()
+    if with_criteria:
+        asked = {}
+        for name, value in (requirements.asked() if requirements is not None else ()):
+            asked[name] = value
+        criteria = tuple(
+            measure_criterion(family, measure, asked.get(REQUIREMENT_OF[measure.name]),
+                              max_boxes=max_boxes, max_tests=max_tests,
+                              max_seconds=max(work.deadline - time.perf_counter(), 0.01),
+                              requirement_boxes=requirement_boxes)
+            for measure in criteria_for(family))
 
     def done(bracket: Bracket, method: str, limit: ScaleEnd) -> MarginResult:
         direct = outcome = None
@@ -178,7 +224,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
                     if limit.kind is not LimitKind.CROSSING or limit.scale > req:
                         limit = crossing_end(family, bracket)
         return MarginResult(bracket, method, decay, req, outcome, limit, time.perf_counter() - started,
-                            direct, work.clock_fired)
+                            direct, work.clock_fired, criteria)
 
     nominal = family.coefficients_at(family.nominal)
     if nominal[0] == 0 or not routh_table(list(nominal)).is_hurwitz:

@@ -10,6 +10,7 @@ from fractions import Fraction
 from ..exact.numbers import approx_text, format_fraction, json_float
 from ..model.family import UncertainPolynomial, shifted_family
 from .outcomes import BoxProblem, Outcome, Verdict, box_problem, requirement_outcome
+from .criteria import MEASURE_OF_REQUIREMENT, decide_criterion
 from .scaling import Scaling
 from .verdict import Witness, decide
 
@@ -20,7 +21,11 @@ __all__ = ["DEFAULT_REQUIREMENT_BOXES", "RequirementCheck", "check_requirements"
 DEFAULT_REQUIREMENT_BOXES = 5000
 
 _WORDS = {"margin": "stable with every tolerance scaled by {v}",
-          "decay_rate": "every root has Re(s) < -{v}"}
+          "decay_rate": "every root has Re(s) < -{v}",
+          "radius": "every root inside |z| < {v}",
+          "gain_margin_db": "stable for every extra loop gain within -{v} .. +{v} dB",
+          "phase_margin_deg": "stable for every extra phase lag up to {v} degrees",
+          "damping_ratio": "every root with damping ratio above {v}"}
 
 
 @dataclass(frozen=True, slots=True)
@@ -31,7 +36,7 @@ class RequirementCheck:
     ``problem`` says why); ``outcome`` is the one pass/fail rule applied to it.
     """
 
-    name: str  # "margin" | "decay_rate"
+    name: str  # a key of robust.model.case.REQUIREMENTS
     required: Fraction
     direct: Verdict | None
     outcome: Outcome
@@ -77,6 +82,11 @@ def decide_requirement(family: UncertainPolynomial, name: str, required: Fractio
     elif name == "decay_rate":
         res = decide(shifted_family(family, required) if required else family, family.box,
                      max_seconds=max_seconds, max_boxes=max_boxes)
+    elif name in MEASURE_OF_REQUIREMENT:
+        verdict, witness, stop = decide_criterion(family, MEASURE_OF_REQUIREMENT[name], required, max_boxes,
+                                                  max_seconds)
+        return RequirementCheck(name, required, verdict, requirement_outcome(required, verdict), witness,
+                                None, stop)
     else:
         raise ValueError(f"unknown requirement {name!r}")
     return RequirementCheck(name, required, res.verdict, requirement_outcome(required, res.verdict),
@@ -96,12 +106,8 @@ def reuse_or_decide(known: Sequence[RequirementCheck], family: UncertainPolynomi
 
 def check_requirements(case, max_seconds: float = 600.0, max_boxes: int = DEFAULT_REQUIREMENT_BOXES
                        ) -> tuple[RequirementCheck, ...]:
-    """Decide the case's requirements directly, in the order margin, decay rate."""
+    """Decide the case's requirements directly, in the order of
+    :data:`robust.model.case.REQUIREMENTS`."""
     family: UncertainPolynomial = case.family
-    req = case.requirements
-    out = []
-    for name in ("margin", "decay_rate"):
-        value = getattr(req, name)
-        if value is not None:
-            out.append(decide_requirement(family, name, value, max_boxes, max_seconds))
-    return tuple(out)
+    return tuple(decide_requirement(family, name, value, max_boxes, max_seconds)
+                 for name, value in case.requirements.asked())

@@ -102,8 +102,7 @@ def analyse(case: Case, *, max_seconds: float = 600.0, max_boxes: int = DEFAULT_
     # the proof as a partition (a result of the edge theorem is decided again without it)
     _, proof = certify(case, result=verdict, max_boxes=max_boxes, max_seconds=left())
     requirements: tuple[RequirementCheck, ...] = ()
-    if verdict.verdict == Verdict.STABLE and (case.requirements.margin is not None
-                                              or case.requirements.decay_rate is not None):
+    if verdict.verdict == Verdict.STABLE and case.requirements.asked():
         say("requirements: deciding them directly")
         requirements = check_requirements(case, max_seconds=left())
     say("margin: robust margin and decay rate")

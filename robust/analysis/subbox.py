@@ -26,7 +26,7 @@ from fractions import Fraction
 from functools import lru_cache
 
 from ..exact.bernstein import Patch, bernstein_patch, tensor_size
-from ..exact.hurwitz import MAX_DELTA_DEGREE, hurwitz_determinant_in
+from ..exact.hurwitz import MAX_DELTA_DEGREE, hurwitz_determinant_in, with_fixed_parts
 from ..exact.polynomials import MultiPoly, as_intervals
 from ..exact.routh import is_hurwitz
 from ..model.family import Box, UncertainPolynomial
@@ -91,9 +91,9 @@ def hurwitz_conditions(family: UncertainPolynomial, point: Sequence[Fraction],
     """a_n, a_0 and Delta_(n-1) in the parameters, each signed to be positive at the Hurwitz
     ``point`` and reduced by its monotone parameters over ``box`` (default: the family's);
     None when the family is too large for the test or ``point`` is not Hurwitz."""
-    coefficients = family.coefficients
-    nvars = len(family.names)
     box = box or family.box
+    coefficients = with_fixed_parts(family.coefficients, box.low, box.high)
+    nvars = len(family.names)
     if family.degree > MAX_DEGREE or not is_hurwitz(family.coefficients_at(point)):
         return None
     polys = [coefficients[0], coefficients[-1]]

@@ -256,8 +256,8 @@ def make_witness(family: UncertainPolynomial, point: Sequence[Fraction], found_b
         return None
     if coeffs[0] == 0:
         return None  # a degree drop, not a witness by itself
-    table = routh_table(list(coeffs))
-    return Witness(family.names, point, coeffs, table.roots, found_by)
+    # the polynomial as the user wrote it (in z for discrete time), with counts in their terms
+    return Witness(family.names, point, family.written_at(point), family.counts_at(point), found_by)
 
 
 def _realise_ends(family: UncertainPolynomial, box: Box, ends: Sequence[tuple[int, bool]]
@@ -391,7 +391,7 @@ def decide(
     start_point = _inside(family, box)
     nominal_coeffs = family.coefficients_at(start_point)
     nominal_table = routh_table(list(nominal_coeffs)) if any(nominal_coeffs) else None
-    nominal_roots = nominal_table.roots if nominal_table else RootCounts(0, 0, 0)
+    nominal_roots = family.counts_at(start_point)  # in the user's terms (the circle for z)
     kh = kharitonov_test(_interval(family, box))
 
     def result(verdict: str, method: str, witness: Witness | None = None, unresolved=Fraction(0),

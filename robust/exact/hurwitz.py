@@ -27,7 +27,7 @@ if TYPE_CHECKING:
 
 __all__ = ["MAX_DELTA_DEGREE", "MAX_DELTA_PRODUCTS", "delta_products", "determinant",
            "hurwitz_determinant_in", "hurwitz_determinant_terms", "hurwitz_matrix",
-           "hurwitz_minor_polynomial"]
+           "hurwitz_minor_polynomial", "with_fixed_parts"]
 
 
 def hurwitz_matrix(coefficients: Sequence[sp.Expr], order: int) -> sp.Matrix:
@@ -235,3 +235,14 @@ def hurwitz_determinant_in(coefficients: Sequence[MultiPoly], nvars: int) -> Mul
     except InputError:  # the work account refused (the bound above is not exact)
         return None
     return sparse.to_multipoly(total, nvars)
+
+
+def with_fixed_parts(coefficients: Sequence[MultiPoly], low: Sequence[Fraction], high: Sequence[Fraction]
+                     ) -> tuple[MultiPoly, ...]:
+    """The coefficients with every parameter that the box [low, high] holds at one value
+    (low == high: a part taken exactly) replaced by that value, so that Delta_(n-1) is
+    multiplied out in the parameters that vary only. Valid on every sub-box of that box."""
+    fixed = {i: a for i, (a, b) in enumerate(zip(low, high, strict=True)) if a == b}
+    if not fixed:
+        return tuple(coefficients)
+    return tuple(c.substitute(fixed) for c in coefficients)

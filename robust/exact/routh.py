@@ -66,6 +66,12 @@ class RootCounts:
         """The degree of the polynomial."""
         return self.open_right + self.imaginary_axis + self.open_left
 
+    @property
+    def words(self) -> str:
+        """The counts in words, for people."""
+        return (f"{self.open_right} in the open right half-plane, {self.imaginary_axis} on the "
+                f"imaginary axis, {self.open_left} in the open left half-plane")
+
     def as_dict(self) -> dict[str, int]:
         """The JSON form of DESIGN.md section 5."""
         return {

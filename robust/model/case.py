@@ -21,8 +21,8 @@ from ..errors import CaseError, FormulaError, InputError, did_you_mean
 from ..exact import sparse
 from ..exact.numbers import approx_text, parse_number, to_fraction
 from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, new_work, parse_formula
-from .family import Box, UncertainPolynomial, build_family
-from .forms import coefficients_polynomial, expression_polynomial, loop_polynomial
+from .family import Box, UncertainPolynomial, build_family, discrete_family
+from .forms import closed_loop, coefficients_polynomial, expression_polynomial, loop_parts
 
 __all__ = ["Case", "Parameter", "Requirements", "load_case", "parse_case"]
 
@@ -65,6 +65,18 @@ class Requirements:
 
     margin: Fraction | None = None
     decay_rate: Fraction | None = None
+    radius: Fraction | None = None
+    gain_margin_db: Fraction | None = None
+    phase_margin_deg: Fraction | None = None
+    damping_ratio: Fraction | None = None
+
+    def asked(self) -> tuple[tuple[str, Fraction], ...]:
+        """(name, value) of every requirement set, in the order of :data:`REQUIREMENTS`."""
+        return tuple((name, getattr(self, name)) for name in REQUIREMENTS if getattr(self, name) is not None)
+
+
+#: Every requirement a case may set, in the order they are decided and shown.
+REQUIREMENTS = ("margin", "decay_rate", "radius", "gain_margin_db", "phase_margin_deg", "damping_ratio")
 
 
 @dataclass(frozen=True, slots=True)
@@ -84,6 +96,13 @@ class Case:
     #: Remarks on how the file was read, said once on stderr by the command line (e.g. what a
     #: large plain-number tolerance means); never part of a result.
     notes: tuple[str, ...] = ()
+    #: The sample time in seconds of a discrete-time case (variable = "z"), when given.
+    sample_time: Fraction | None = None
+
+    @property
+    def discrete(self) -> bool:
+        """Discrete time: stable means every root strictly inside the unit circle."""
+        return self.family.discrete
 
     @property
     def names(self) -> tuple[str, ...]:
@@ -328,7 +347,7 @@ def parse_case(text: str, path: str = "<case>") -> Case:
         if match:
             problem += f" at column {match.group(2)}"
         raise CaseError(path, "", f"TOML syntax error: {problem}", "valid TOML", None, line) from None
-    allowed = {"title", "summary", "variable", "parameters", "polynomial", "requirements"}
+    allowed = {"title", "summary", "variable", "sample_time", "parameters", "polynomial", "requirements"}
     for key in data:
         if key not in allowed:
             raise reader.error("", key, "unknown top-level key" + _top_level_hint(key, data[key], allowed),
@@ -344,7 +363,17 @@ def parse_case(text: str, path: str = "<case>") -> Case:
         raise reader.error("", "summary", "must be text", "a string")
     variable = data.get("variable", "s")
     if not isinstance(variable, str) or not _NAME.match(variable):
-        raise reader.error("", "variable", "not a valid variable name", 'e.g. "s"', variable)
+        raise reader.error("", "variable", "not a valid variable name",
+                           '"s" (continuous time) or "z" (discrete time)', variable)
+    sample_time = None
+    if "sample_time" in data:
+        sample_time = _number(reader, "", "sample_time", data["sample_time"])
+        if variable != "z":
+            raise reader.error("", "sample_time", "a sample time belongs to a discrete-time case",
+                               'variable = "z" with it, or no sample_time')
+        if sample_time <= 0:
+            raise reader.error("", "sample_time", "out of range", "a positive time in seconds",
+                               data["sample_time"])
     params_table = data.get("parameters")
     if params_table is None:
         raise reader.error("parameters", None, "missing section [parameters]",
@@ -377,6 +406,7 @@ def parse_case(text: str, path: str = "<case>") -> Case:
     form = forms[0]
     _check_total_length(reader, form, poly[form])
     formulas: list[tuple[str, str]] = []
+    parts = None  # the loop's (den_P den_C, num_P num_C)
     work = new_work()  # one account for every formula of the case and for combining them
     try:
         if form == "expression":
@@ -395,7 +425,7 @@ def parse_case(text: str, path: str = "<case>") -> Case:
             n = len(items) - 1
             parsed = [_formula(reader, "polynomial", "coefficients", item, names, None, False, work, i)
                       for i, item in enumerate(items)]
-            formulas += [(f"coefficients[{i}] (s^{n - i})", str(item)) for i, item in enumerate(items)]
+            formulas += [(f"coefficients[{i}] ({variable}^{n - i})", str(item)) for i, item in enumerate(items)]
             numerator, denominator = coefficients_polynomial(parsed, work)
         else:
             loop = poly["loop"]
@@ -408,7 +438,8 @@ def parse_case(text: str, path: str = "<case>") -> Case:
                                   names, variable, False, work)
             formulas.append(("plant", str(loop["plant"])))
             formulas.append(("controller", str(loop.get("controller", "1"))))
-            numerator, denominator = loop_polynomial(plant, controller, work)
+            parts = loop_parts(plant, controller, work)
+            numerator, denominator = closed_loop(parts)
             if sparse.is_zero(numerator):
                 raise reader.error("polynomial.loop", "plant",
                                    "the characteristic polynomial 1 + P*C is identically zero",
@@ -433,10 +464,34 @@ def parse_case(text: str, path: str = "<case>") -> Case:
                               limits=tuple(p.limits for p in parameters))
     except InputError as error:
         raise reader.error("polynomial", form, error.problem, error.expected) from None
-    requirements = _requirements(reader, data.get("requirements", {}))
+    if parts is not None:
+        family = _with_loop(family, parts, slots)
+    if variable == "z":
+        family = discrete_family(family)
+    requirements = _requirements(reader, data.get("requirements", {}), variable == "z", bool(family.loop))
     return Case(path, title.strip(), summary.strip(), variable, parameters, form,
                 tuple(formulas), family, requirements,
-                hashlib.sha256(text.encode()).hexdigest(), tuple(reader.notes))
+                hashlib.sha256(text.encode()).hexdigest(), tuple(reader.notes), sample_time)
+
+
+def _with_loop(family: UncertainPolynomial, parts: tuple[dict, dict], slots: int) -> UncertainPolynomial:
+    """The family with its loop's parts (D, N) as coefficient lists of the family's degree,
+    divided by their common factor in the parameters (which divides the family's own, so it
+    keeps one sign over the box). A loop whose parts reach above the closed loop's degree
+    (their leading terms cancel) gets none: its gain and phase margins are not defined."""
+    from ..exact.content import common_factor, divide
+    from ..exact.polynomials import MultiPoly
+
+    k = slots - 1
+    split = [sparse.split_by(part, 0, slots) for part in parts]
+    if max(max(by_power, default=0) for by_power in split) > family.degree:
+        return family
+    lists = [[by_power.get(d, MultiPoly.constant(k, 0)) for d in range(family.degree, -1, -1)]
+             for by_power in split]
+    content = common_factor([c for coefficients in lists for c in coefficients if not c.is_zero])
+    if content is not None:
+        lists = [[divide(c, content) if not c.is_zero else c for c in coefficients] for coefficients in lists]
+    return dataclasses.replace(family, loop=(tuple(lists[0]), tuple(lists[1])))
 
 
 def _check_total_length(reader: _Reader, form: str, value: object) -> None:
@@ -448,20 +503,40 @@ def _check_total_length(reader: _Reader, form: str, value: object) -> None:
                            f"at most {MAX_TOTAL_LENGTH:,} characters in all the formulas of a case")
 
 
-def _requirements(reader: _Reader, table: object) -> Requirements:
+#: Per requirement: (what it must be, the test of a value) for the one-line error.
+_RANGES = {
+    "margin": ("a positive number (1 = the tolerances as written)", lambda v: v > 0),
+    "decay_rate": ("a number >= 0 (1/s)", lambda v: v >= 0),
+    "radius": ("a number in (0, 1]", lambda v: 0 < v <= 1),
+    "gain_margin_db": ("a positive number of decibels, e.g. 6", lambda v: v > 0),
+    "phase_margin_deg": ("an angle in degrees between 0 and 179, e.g. 45", lambda v: 0 < v <= 179),
+    "damping_ratio": ("a number between 0 and 1, e.g. 0.4", lambda v: 0 < v < 1),
+}
+
+
+def _requirements(reader: _Reader, table: object, discrete: bool = False, loop: bool = False) -> Requirements:
     if not isinstance(table, dict):
         raise reader.error("requirements", None, "must be a table", "[requirements]")
     out = {}
     for key in table:
-        if key not in ("margin", "decay_rate"):
-            raise reader.error("requirements", key, "unknown requirement" + did_you_mean(
-                key, ("margin", "decay_rate")), "margin, decay_rate")
+        if key not in REQUIREMENTS:
+            raise reader.error("requirements", key, "unknown requirement" + did_you_mean(key, REQUIREMENTS),
+                               ", ".join(REQUIREMENTS))
         value = _number(reader, "requirements", key, table[key])
-        if value < 0 or (key == "margin" and value == 0):
-            expected = "a positive number" if key == "margin" else "a number >= 0"
+        expected, holds = _RANGES[key]
+        if not holds(value):
             raise reader.error("requirements", key, "out of range", expected, table[key])
+        if key == "decay_rate" and discrete:
+            raise reader.error("requirements", key, "a decay rate is for continuous time (variable s)",
+                               "radius = r: every root inside |z| < r (e.g. 0.9)")
+        if key == "radius" and not discrete:
+            raise reader.error("requirements", key, "a radius is for discrete time (variable = \"z\")",
+                               "decay_rate = sigma: every root left of Re(s) = -sigma")
+        if key in ("gain_margin_db", "phase_margin_deg") and not loop:
+            raise reader.error("requirements", key, "a gain or phase margin needs the loop's plant and controller",
+                               "[polynomial.loop] with plant and controller")
         out[key] = value
-    return Requirements(out.get("margin"), out.get("decay_rate"))
+    return Requirements(**out)
 
 
 def load_case(path: str | Path) -> Case:

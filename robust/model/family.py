@@ -18,14 +18,15 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from ..errors import InputError
-from ..exact.numbers import to_float
 from ..exact.content import common_factor, divide
+from ..exact.numbers import to_float
 from ..exact.polynomials import Bound, MultiPoly, as_intervals
 
 if TYPE_CHECKING:  # sympy is loaded only by the functions that take sympy input
     import sympy as sp
 
-__all__ = ["Box", "UncertainPolynomial", "build_family", "classify", "shifted_family", "sign_over_box"]
+__all__ = ["Box", "UncertainPolynomial", "build_family", "classify", "discrete_family", "gain_family",
+           "phase_family", "radius_family", "sector_family", "shifted_family", "sign_over_box"]
 
 #: The dependence classes, from the most to the least structured.
 KINDS = ("independent", "affine", "multilinear", "polynomial")
@@ -134,6 +135,16 @@ class UncertainPolynomial:
     factors: tuple[MultiPoly, ...] = ()
     #: Physical limits per parameter, exclusive; None is no limit on that side.
     limits: tuple[tuple[Fraction | None, Fraction | None], ...] = ()
+    #: The user's variable. "z" is discrete time: ``coefficients`` are then the Moebius image
+    #: (:func:`discrete_family`) of ``source``, the polynomial in z as written, and are Hurwitz
+    #: exactly when every root in z lies strictly inside the unit circle.
+    variable: str = "s"
+    source: tuple[MultiPoly, ...] = ()
+    #: The circle |z| = radius that ``coefficients`` stand for (discrete time only).
+    radius: Fraction = Fraction(1)
+    #: For a loop: (D, N), den_P den_C and num_P num_C, in the same form as ``coefficients``
+    #: (same degree, highest power first), so that D + k N is the loop with an extra gain k.
+    loop: tuple[tuple[MultiPoly, ...], tuple[MultiPoly, ...]] = ()
     # derived from ``coefficients`` in __post_init__ (not init fields, so that
     # dataclasses.replace recomputes them rather than carrying them over stale)
     _derivatives: tuple[tuple[MultiPoly, ...], ...] = field(init=False, repr=False, compare=False)
@@ -155,6 +166,35 @@ class UncertainPolynomial:
     def degree(self) -> int:
         """Nominal degree n (the leading coefficient is not identically zero)."""
         return len(self.coefficients) - 1
+
+    @property
+    def discrete(self) -> bool:
+        """A discrete-time family: stable means every root strictly inside the unit circle."""
+        return self.variable == "z"
+
+    @property
+    def written(self) -> tuple[MultiPoly, ...]:
+        """The coefficients of the polynomial in the user's variable, highest power first."""
+        return self.source or self.coefficients
+
+    def written_at(self, point: Sequence[Fraction]) -> tuple[Fraction, ...]:
+        """Exact coefficients of the polynomial in the user's variable at a point."""
+        return tuple(c.evaluate(point) for c in self.written)
+
+    def counts_at(self, point: Sequence[Fraction]):
+        """Exact root counts at a point, in the user's terms: inside, on and outside the
+        circle for a discrete-time family (its leading coefficient non-zero there), left of,
+        on and right of the imaginary axis otherwise (of ``coefficients``)."""
+        if self.source:
+            from ..exact.regions import disk_counts
+
+            written = self.written_at(point)
+            if written[0] != 0:
+                return disk_counts(written, self.radius)
+        from ..exact.routh import RootCounts, routh_table
+
+        coefficients = self.coefficients_at(point)
+        return routh_table(list(coefficients)).roots if any(coefficients) else RootCounts(0, 0, 0)
 
     @property
     def structure(self) -> str:
@@ -406,3 +446,131 @@ def shifted_family(family: UncertainPolynomial, sigma: Fraction) -> UncertainPol
             polys.append(family.coefficients[n - k])
         new.append(MultiPoly.linear_combination(k_vars, polys, weights))
     return family.with_coefficients(new)
+
+
+def _product(a: MultiPoly, b: MultiPoly) -> MultiPoly:
+    """a * b, exactly (the sizes are those of a case already read)."""
+    from ..exact import sparse
+
+    work = sparse.Work(10**12)
+    return sparse.to_multipoly(sparse.multiply(sparse.from_multipoly(a), sparse.from_multipoly(b), work),
+                               a.nvars)
+
+
+def _mapped(coefficients: Sequence[MultiPoly], weights: Sequence[Sequence[Fraction]], nvars: int
+            ) -> tuple[MultiPoly, ...]:
+    return tuple(MultiPoly.linear_combination(nvars, coefficients, row) for row in weights)
+
+
+def _padded(coefficients: Sequence[MultiPoly], degree: int, nvars: int) -> list[MultiPoly]:
+    """Leading zero coefficients up to ``degree``."""
+    return [MultiPoly.constant(nvars, 0)] * (degree + 1 - len(coefficients)) + list(coefficients)
+
+
+def discrete_family(family: UncertainPolynomial) -> UncertainPolynomial:
+    """The family of a polynomial in z (``family``'s coefficients), mapped onto the Hurwitz
+    question of the unit disk (:func:`robust.exact.regions.moebius_weights`); the z
+    coefficients are kept as ``source``, and loop parts are mapped alike."""
+    from ..exact.regions import moebius_weights
+
+    k = len(family.names)
+    weights = moebius_weights(family.degree)
+    loop = tuple(_mapped(_padded(part, family.degree, k), weights, k) for part in family.loop)
+    return dataclasses.replace(family, coefficients=_mapped(family.coefficients, weights, k),
+                               variable="z", source=family.coefficients, loop=loop)  # type: ignore[arg-type]
+
+
+def radius_family(family: UncertainPolynomial, radius: Fraction) -> UncertainPolynomial:
+    """For a discrete-time family: the family that is Hurwitz exactly when every root in z lies
+    inside |z| < radius."""
+    from ..exact.regions import moebius_weights
+
+    assert family.discrete
+    weights = moebius_weights(family.degree, Fraction(radius))
+    return dataclasses.replace(family, coefficients=_mapped(family.source, weights, len(family.names)),
+                               radius=Fraction(radius))
+
+
+def sector_family(family: UncertainPolynomial, t: Fraction) -> UncertainPolynomial:
+    """The family that is Hurwitz exactly when every root has damping ratio above
+    damping_of(t) (:func:`robust.exact.regions.sector_weights`), degree 2n. For a
+    discrete-time family the roots are those of the Hurwitz form, the bilinear (Tustin)
+    equivalent w = (z - 1) / (z + 1) of the z roots."""
+    from ..exact.regions import sector_weights
+
+    k = len(family.names)
+    a = family.coefficients
+    products: dict[tuple[int, int], MultiPoly] = {}
+    new = []
+    for row in sector_weights(family.degree, Fraction(t)):
+        polys, weights = [], []
+        for i, j, w in row:
+            if (i, j) not in products:
+                products[i, j] = _product(a[i], a[j])
+            polys.append(products[i, j])
+            weights.append(w)
+        new.append(MultiPoly.linear_combination(k, polys, weights))
+    return dataclasses.replace(family, coefficients=tuple(new), source=(), loop=())
+
+
+def _extended(poly: MultiPoly) -> MultiPoly:
+    """poly in one more variable (last), which it does not involve."""
+    return MultiPoly.from_mapping(poly.nvars + 1, {(*e, 0): c for e, c in poly.terms})
+
+
+def _with_extra(family: UncertainPolynomial, name: str, coefficients: Sequence[MultiPoly],
+                low: Fraction, high: Fraction, nominal: Fraction) -> UncertainPolynomial:
+    box = Box((*family.box.names, name), (*family.box.low, low), (*family.box.high, high))
+    limits = tuple(family.limits) or ((None, None),) * len(family.names)
+    return UncertainPolynomial(
+        names=(*family.names, name), coefficients=tuple(coefficients), box=box,
+        nominal=(*family.nominal, nominal), rational=family.rational, cleared=family.cleared,
+        factors=(), limits=(*limits, (None, None)), variable=family.variable)
+
+
+#: The names of the extra parameter of the loop criteria (they cannot be parameter names).
+LOOP_GAIN = "extra loop gain"
+PHASE_LAG = "tan^2(phase lag/2)"
+
+
+def gain_family(family: UncertainPolynomial, low: Fraction, high: Fraction) -> UncertainPolynomial:
+    """The loop with an extra gain k in [low, high] (0 < low <= 1 <= high) as one more
+    parameter, named :data:`LOOP_GAIN`: D + k N."""
+    if not family.loop:
+        raise ValueError("the gain margin needs a loop (plant and controller)")
+    k = len(family.names)
+    gain = MultiPoly.from_mapping(k + 1, {(0,) * k + (1,): 1})
+    d, n = family.loop
+    coefficients = [MultiPoly.linear_combination(k + 1, [_extended(a), _product(gain, _extended(b))], [1, 1])
+                    for a, b in zip(d, n, strict=True)]
+    return _with_extra(family, LOOP_GAIN, coefficients, Fraction(low), Fraction(high), Fraction(1))
+
+
+def phase_family(family: UncertainPolynomial, high: Fraction) -> UncertainPolynomial:
+    """The loop with an extra phase lag e^(-j theta), tan^2(theta / 2) = u in [0, high], as
+    one more parameter named :data:`PHASE_LAG`.
+
+    With t = tan(theta / 2), e^(-j theta) = (1 - j t) / (1 + j t), and D + e^(-j theta) N has
+    the roots of c = (D + N) + j t (D - N). The conjugate-coefficient polynomial has the
+    conjugate roots, in the same half-plane (or disk), so c is stable exactly when the real
+    c * conj(c) = (D + N)^2 + u (D - N)^2 is: real coefficients, affine in u.
+    """
+    if not family.loop:
+        raise ValueError("the phase margin needs a loop (plant and controller)")
+    k = len(family.names)
+    d, n = family.loop
+    total = [MultiPoly.linear_combination(k, [a, b], [1, 1]) for a, b in zip(d, n, strict=True)]
+    diff = [MultiPoly.linear_combination(k, [a, b], [1, -1]) for a, b in zip(d, n, strict=True)]
+    u = MultiPoly.from_mapping(k + 1, {(0,) * k + (1,): 1})
+
+    def square(coeffs: Sequence[MultiPoly]) -> list[MultiPoly]:
+        size = len(coeffs)
+        out = []
+        for m in range(2 * size - 1):
+            terms = [_product(coeffs[i], coeffs[m - i]) for i in range(max(0, m - size + 1), min(m, size - 1) + 1)]
+            out.append(MultiPoly.linear_combination(k, terms, [1] * len(terms)))
+        return out
+
+    coefficients = [MultiPoly.linear_combination(k + 1, [_extended(a), _product(u, _extended(b))], [1, 1])
+                    for a, b in zip(square(total), square(diff), strict=True)]
+    return _with_extra(family, PHASE_LAG, coefficients, Fraction(0), Fraction(high), Fraction(0))

@@ -22,8 +22,8 @@ from ..exact.regions import DiskCounts, SchurCohnTable, disk_counts, schur_cohn_
 from ..exact.routh import RouthTable
 from .expr import ParsedFormula, polynomial_coefficients
 
-__all__ = ["DiscreteTable", "as_coefficients", "coefficients_polynomial", "discrete_table",
-           "expression_polynomial", "loop_polynomial", "routh_table"]
+__all__ = ["DiscreteTable", "as_coefficients", "closed_loop", "coefficients_polynomial", "discrete_table",
+           "expression_polynomial", "loop_parts", "routh_table"]
 
 Quotient = tuple[dict, dict]  # sparse numerator, sparse denominator
 
@@ -83,13 +83,18 @@ def coefficients_polynomial(items: Sequence[ParsedFormula], work: sparse.Work) -
     return _lowest_terms((total, common))
 
 
-def loop_polynomial(plant: ParsedFormula, controller: ParsedFormula, work: sparse.Work) -> Quotient:
-    """den_P * den_C + num_P * num_C: unity negative feedback, numerators and denominators as
+def loop_parts(plant: ParsedFormula, controller: ParsedFormula, work: sparse.Work) -> tuple[dict, dict]:
+    """(den_P * den_C, num_P * num_C): the loop's open-loop denominator and numerator, as
     written (a pole-zero cancellation inside a formula must not hide a mode of the loop)."""
     n_p, d_p = _written(plant)
     n_c, d_c = _written(controller)
-    return _lowest_terms((sparse.add(sparse.multiply(d_p, d_c, work), sparse.multiply(n_p, n_c, work)),
-                          sparse.constant(1)))
+    return sparse.multiply(d_p, d_c, work), sparse.multiply(n_p, n_c, work)
+
+
+def closed_loop(parts: tuple[dict, dict]) -> Quotient:
+    """den_P * den_C + num_P * num_C from :func:`loop_parts`: unity negative feedback."""
+    return _lowest_terms((sparse.add(*parts), sparse.constant(1)))
+
 
 
 def as_coefficients(poly_or_coeffs: object, variable: str = "s") -> tuple[Fraction, ...]:

@@ -14,11 +14,6 @@ from .fmt import entry_cell, exact_cell, witness_roots
 __all__ = ["certificate_section", "proof_blocks", "undecided_blocks", "witness_section"]
 
 
-def _roots_words(counts) -> str:
-    return (f"{counts.open_right} in the open right half-plane, {counts.imaginary_axis} on the "
-            f"imaginary axis, {counts.open_left} in the open left half-plane")
-
-
 def routh_table_block(table: RouthTable, caption: str = "") -> Table:
     """One exact Routh array: power down the left, entries exact (long ones shortened)."""
     width = max(len(row.entries) for row in table.rows)
@@ -44,7 +39,7 @@ def _vertex_section(vertex: KharitonovVertex, degree: int) -> Section:
     blocks.append(routh_table_block(table, f"Routh array of {vertex.label}"))
     signs = " ".join("+" if s > 0 else "−" for s in table.first_column_signs)
     blocks.append(Paragraph(("First column signs ", Code(signs), f"; {table.sign_changes} sign "
-                             f"change(s); roots: {_roots_words(table.roots)}."), "note"))
+                             f"change(s); roots: {table.roots.words}."), "note"))
     for special in table.special_rows:
         blocks.append(Paragraph(("Special row: " + special.describe() + ".",), "note"))
     if table.count_note:
@@ -140,7 +135,7 @@ def witness_section(case, witness: Witness, title: str = "Witness: a parameter s
         Paragraph((f"Found by: {witness.found_by}. Re-checked with the exact Routh array at these exact "
                    "rational values.",)),
         table,
-        Paragraph((f"Roots of this member: {_roots_words(witness.roots)}.",)),
+        Paragraph((f"Roots of this member: {witness.roots.words}.",)),
         ItemList(tuple((Code(text),) for text in shown)),
         Paragraph(("Root values are floats, for display; the counts above are exact.",), "note"),
     )

@@ -69,14 +69,7 @@ def _badge(outcome: Outcome, key: str = "") -> Badge:
 def _requirement_results(analysis: Analysis) -> list[tuple[str, Fraction, Outcome]]:
     """(name, required, outcome) per requirement of the case: the outcomes of the margin
     search, which applies the one pass/fail rule to the direct decision and the bracket."""
-    req = analysis.case.requirements
-    out = []
-    if req.margin is not None and analysis.margin.outcome is not None:
-        out.append(("margin", req.margin, analysis.margin.outcome))
-    decay = analysis.margin.decay
-    if req.decay_rate is not None and decay is not None and decay.outcome is not None:
-        out.append(("decay_rate", req.decay_rate, decay.outcome))
-    return out
+    return list(analysis.margin.outcomes())
 
 
 def rerun_command(analysis: Analysis, case_path: str | None = None) -> str:
@@ -176,9 +169,7 @@ def _verdict(analysis: Analysis, folder: str = "DIR") -> Section:
                   "outcome"),
         Paragraph(("Method: " + result.method_text + ".",)),
         Paragraph(("Why: " + result.reason + ".",)),
-        Paragraph((f"Nominal design: {result.nominal.open_right} root(s) in the open right half-plane, "
-                   f"{result.nominal.imaginary_axis} on the imaginary axis, {result.nominal.open_left} in "
-                   "the open left half-plane.",)),
+        Paragraph((f"Nominal design: roots {result.nominal.words}.",)),
     ]
     if result.method == "subdivision" and result.verdict == "stable":
         blocks.append(Paragraph((f"Subdivision: {result.proven_boxes} sub-boxes proven (of {result.boxes} "

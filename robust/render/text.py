@@ -117,17 +117,12 @@ def _dependence_words(kind: str) -> str:
     return f"{kind} dependence"
 
 
-def _roots_line(roots) -> str:
-    return (f"{roots.open_right} in the open right half-plane, {roots.imaginary_axis} on the "
-            f"imaginary axis, {roots.open_left} in the open left half-plane")
-
-
 def render_check(case, result) -> str:
     """The verdict of ``robust check`` for people."""
     fam = case.family
     lines = [f"Case: {case.title}   [{case.path}]",
              f"Family: degree {fam.degree}, {len(fam.names)} parameters, {_dependence_words(fam.kind)}"]
-    lines.append(f"Nominal: {_roots_line(result.nominal)}")
+    lines.append(f"Nominal: {result.nominal.words}")
     headline = result.verdict.headline
     lines.append(f"Verdict: {headline}")
     lines.append(f"Method: {result.method_text}")
@@ -160,7 +155,7 @@ def render_check(case, result) -> str:
             unit = f" {p.unit}" if p.unit else ""
             lines.append(f"  {name} = {_fmt(value)}{unit}   "
                          f"[range {approx_text(p.low, 6)} .. {approx_text(p.high, 6)}]")
-        lines.append(f"  roots: {_roots_line(w.roots)}")
+        lines.append(f"  roots: {w.roots.words}")
         values = witness_roots(w)
         if values is None:
             lines.append("  root values: not shown (the coefficients lie beyond the float range)")
@@ -272,6 +267,16 @@ def render_margin(case, result) -> str:
             lines.append(f"  worst-case 2 % settling time about 4/sigma = {settle:.4g} s (common rule of thumb)")
         if d.outcome is not None:
             lines.append(f"Requirement decay_rate >= {approx_text(d.requirement)}: {d.outcome.word}")
+    for c in result.criteria:
+        lines.append(f"{c.measure.words.capitalize()}, worst case over the box: {c.text()}")
+        if c.limit_text():
+            lines.append(f"  limited by: {c.limit_text()}")
+        if c.bracket.note:
+            lines.append(f"  note: {c.bracket.note}")
+    for name, required, outcome in result.outcomes():
+        if name not in ("margin", "decay_rate"):
+            sign = "<=" if name == "radius" else ">="
+            lines.append(f"Requirement {name} {sign} {approx_text(required)}: {outcome.word}")
     if result.safety_stop:
         lines.append("Note: the wall-clock safety limit stopped the search early; a re-run may differ.")
     lines.append(f"Time: {result.seconds:.2f} s")

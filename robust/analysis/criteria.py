@@ -1,0 +1,330 @@
+"""The criteria a sign-off names beyond robust stability, each a certified bracket.
+
+* gain margin (upper and lower direction), for loops: the largest g such that the loop stays
+  stable for every extra loop gain k in [1, g] (in [1/g, 1]) and every parameter point;
+* phase margin, for loops: the largest angle such that it stays stable for every extra phase
+  lag e^(-j theta), theta in [0, angle];
+* damping ratio: the largest zeta with every root of every member in the sector
+  Re(s) < -zeta |s| (for discrete time, of the bilinear equivalent w = (z - 1) / (z + 1));
+* spectral radius, for discrete time: the least r with every root of every member in |z| < r.
+
+Each becomes a family that is Hurwitz exactly when the criterion holds at one value of a
+search variable x (:mod:`robust.model.family`: gain_family, phase_family, sector_family,
+radius_family), larger x asking more, and x = 0 asking robust stability itself. The bracket
+on x comes from the decision ladder and the bisection of :mod:`.bracket` (proven at the lower
+end, a verified witness at the upper end); it is shown in the engineer's unit (dB, degrees,
+ratio, radius), rounded outwards. Where a value in that unit has no rational x (6 dB is
+g = 10^(6/20)), a requirement is proven at a rational x on the strict side and refuted at one
+on the lenient side, both within 1e-12 relative (:meth:`Measure.x_of`).
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, replace
+from fractions import Fraction
+
+from ..exact.numbers import format_fraction, json_float, short_between
+from ..exact.regions import damping_of, damping_parameter
+from ..model.family import (LOOP_GAIN, PHASE_LAG, UncertainPolynomial, gain_family, phase_family,
+                            radius_family, sector_family)
+from .bracket import Bracket, Work, bisect_margin
+from .outcomes import Outcome, Verdict, requirement_outcome
+from .progress import tell
+from .verdict import Witness, decide
+
+__all__ = ["CRITERIA", "MEASURE_OF_REQUIREMENT", "Criterion", "Measure", "criteria_for", "decide_criterion",
+           "for_requirements", "measure_criterion"]
+
+_REL = Fraction(1, 10**12)
+
+
+def _rational_near(value, side: int) -> Fraction:
+    """A short rational within 1e-12 relative of the positive mpmath number ``value``, on
+    its ``side`` (+1 above, -1 below)."""
+    import mpmath
+
+    with mpmath.workdps(60):
+        text = mpmath.nstr(value, 50, strip_zeros=False)
+    exact = Fraction(text)
+    guard = exact * Fraction(1, 10**40)  # the 50 digits' own rounding, outwards
+    if side > 0:
+        start = exact + guard
+        return short_between(start, start * (1 + _REL)) or start
+    start = exact - guard
+    return short_between(start * (1 - _REL), start) or start
+
+
+@dataclass(frozen=True, slots=True)
+class Measure:
+    """One criterion: its search variable x, the family that asks it at x, and the unit."""
+
+    name: str  # the requirement's and the JSON's key
+    words: str  # for people: "gain margin (upward)"
+    unit: str  # "dB", "deg", "", "|z|"
+    family_at: Callable[[UncertainPolynomial, Fraction], UncertainPolynomial]
+    start: Fraction  # the first x tried
+    end: Fraction  # the cap (or the value where the question stops making sense)
+    end_testable: bool
+    #: x -> the value in the engineer's unit (mpmath number or Fraction), increasing in x
+    #: except for the radius (decreasing)
+    value_of: Callable[[Fraction], object]
+    #: (value, side) -> x: the exact x of a value, or a rational on ``side`` of it
+    x_of: Callable[[Fraction, int], Fraction]
+    smaller_is_better: bool = False
+
+    def shown(self, x: Fraction | None, side: int) -> float | None:
+        """The value at x as a float rounded outwards (``side`` +1 up, -1 down)."""
+        if x is None:
+            return None
+        value = self.value_of(x)
+        f = float(value)
+        if isinstance(value, Fraction):
+            if (side > 0 and Fraction(f) < value) or (side < 0 and Fraction(f) > value):
+                f = math.nextafter(f, side * math.inf)
+            return f
+        return f * (1 + side * 1e-12) if f else f  # mpmath values: 1e-12 outwards
+
+
+def _gain_value(x: Fraction):
+    import mpmath
+
+    with mpmath.workdps(40):
+        g = 1 + x
+        return 20 * mpmath.log10(mpmath.mpf(g.numerator) / g.denominator)
+
+
+def _gain_x(db: Fraction, side: int) -> Fraction:
+    import mpmath
+
+    with mpmath.workdps(60):
+        g = mpmath.power(10, mpmath.mpf(db.numerator) / (20 * db.denominator))
+        return _rational_near(g - 1, side)
+
+
+def _phase_value(u: Fraction):
+    import mpmath
+
+    with mpmath.workdps(40):
+        return 2 * mpmath.atan(mpmath.sqrt(mpmath.mpf(u.numerator) / u.denominator)) * 180 / mpmath.pi
+
+
+def _phase_x(deg: Fraction, side: int) -> Fraction:
+    import mpmath
+
+    with mpmath.workdps(60):
+        half = mpmath.mpf(deg.numerator) / deg.denominator * mpmath.pi / 360
+        return _rational_near(mpmath.tan(half) ** 2, side)
+
+
+def _upper_gain(family: UncertainPolynomial, x: Fraction) -> UncertainPolynomial:
+    return gain_family(family, Fraction(1), 1 + x)
+
+
+def _lower_gain(family: UncertainPolynomial, x: Fraction) -> UncertainPolynomial:
+    return gain_family(family, 1 / (1 + x), Fraction(1))
+
+
+GAIN_UP = Measure("gain_margin_db", "gain margin (gain raised)", "dB", _upper_gain, Fraction(1),
+                  Fraction(10**6 - 1), True, _gain_value, _gain_x)
+#: Both directions at once, k in [1/g, g]: what the requirement gain_margin_db asks.
+GAIN_BOTH = Measure("gain_margin_db", "gain margin (gain raised or lowered)", "dB",
+                    lambda f, x: gain_family(f, 1 / (1 + x), 1 + x), Fraction(1), Fraction(10**6 - 1), True,
+                    _gain_value, _gain_x)
+GAIN_DOWN = Measure("gain_margin_db_lower_direction", "gain margin (gain lowered)", "dB", _lower_gain,
+                    Fraction(1), Fraction(10**6 - 1), True, _gain_value, _gain_x)
+PHASE = Measure("phase_margin_deg", "phase margin", "deg", phase_family, _phase_x(Fraction(30), 1),
+                _phase_x(Fraction(179), -1), True, _phase_value, _phase_x)
+DAMPING = Measure("damping_ratio", "damping ratio", "", sector_family, Fraction(1, 4), Fraction(1), False,
+                  damping_of, lambda zeta, side: damping_parameter(zeta, side))
+RADIUS = Measure("spectral_radius", "spectral radius", "", lambda f, x: radius_family(f, 1 - x),
+                 Fraction(1, 20), Fraction(1), False, lambda x: 1 - x, lambda r, side: 1 - r,
+                 smaller_is_better=True)
+
+#: Every criterion a margin search reports, by name.
+CRITERIA = {m.name: m for m in (GAIN_UP, GAIN_DOWN, PHASE, DAMPING, RADIUS)}
+#: The requirement that asks each criterion (the radius is asked by "radius").
+REQUIREMENT_OF = {"gain_margin_db": "gain_margin_db", "gain_margin_db_lower_direction": "gain_margin_db",
+                  "phase_margin_deg": "phase_margin_deg", "damping_ratio": "damping_ratio",
+                  "spectral_radius": "radius"}
+#: The measure each criterion requirement is decided with, directly.
+MEASURE_OF_REQUIREMENT = {"gain_margin_db": GAIN_BOTH, "phase_margin_deg": PHASE, "damping_ratio": DAMPING,
+                          "radius": RADIUS}
+
+
+def criteria_for(family: UncertainPolynomial) -> tuple[Measure, ...]:
+    """The criteria that apply to a family: gain and phase margins for loops, the damping
+    ratio always, the spectral radius for discrete time."""
+    out = []
+    if family.loop:
+        out += [GAIN_UP, GAIN_DOWN, PHASE]
+    out.append(DAMPING)
+    if family.discrete:
+        out.append(RADIUS)
+    return tuple(out)
+
+
+def _limited_by(measure: Measure, witness: Witness | None, x: Fraction | None) -> dict | None:
+    """The parameter point (and extra gain or lag) that limits a criterion, exactly."""
+    if witness is None:
+        return None
+    out: dict[str, object] = {n: format_fraction(v) for n, v in witness.parameters.items()
+                              if n not in (LOOP_GAIN, PHASE_LAG)}
+    values = witness.parameters
+    if LOOP_GAIN in values:
+        k = values[LOOP_GAIN]
+        out["extra_gain"] = format_fraction(k)
+        out["extra_gain_db"] = json_float(20 * math.log10(k))
+    if PHASE_LAG in values:
+        out["extra_phase_lag_deg"] = json_float(float(_phase_value(values[PHASE_LAG])))
+    if measure is DAMPING and x is not None:
+        out["sector_damping_ratio"] = format_fraction(damping_of(x))
+    if measure is RADIUS and x is not None:
+        out["circle_radius"] = format_fraction(1 - x)
+    return out
+
+
+@dataclass(frozen=True, slots=True)
+class Criterion:
+    """A certified bracket on one criterion, in x and in the engineer's unit."""
+
+    measure: Measure
+    bracket: Bracket  # on x: proven at lower, a verified witness at upper
+    requirement: Fraction | None = None
+    outcome: Outcome | None = None
+    note: str = ""
+
+    @property
+    def passed(self) -> bool | None:
+        return None if self.outcome is None else self.outcome.passed
+
+    @property
+    def low(self) -> float | None:
+        """The guaranteed value (for the radius: the witnessed one, its lower end)."""
+        m, b = self.measure, self.bracket
+        return m.shown(b.upper, -1) if m.smaller_is_better else m.shown(b.lower, -1)
+
+    def text(self) -> str:
+        """The bracket for people: "[48.48, 48.77] deg", "at least 84.3 dB"."""
+        unit = f" {self.measure.unit}" if self.measure.unit else ""
+        low, high = self.low, self.high
+        if low is None and high is not None:
+            return f"at most {high:.6g}{unit}"
+        if high is None:
+            return f"at least {low:.6g}{unit}"
+        return f"[{low:.6g}, {high:.6g}]{unit}"
+
+    def limit_text(self) -> str:
+        """What limits it, for people: the witness point and the extra gain or lag."""
+        limited = _limited_by(self.measure, self.bracket.witness, self.bracket.upper)
+        if not limited:
+            return ""
+        return ", ".join(f"{n} = {v:.6g}" if isinstance(v, float) else f"{n} = {v}" for n, v in limited.items())
+
+    @property
+    def high(self) -> float | None:
+        m, b = self.measure, self.bracket
+        return m.shown(b.lower, +1) if m.smaller_is_better else m.shown(b.upper, +1)
+
+    def as_dict(self) -> dict[str, object]:
+        """JSON: lower and upper in the unit, rounded outwards; limited_by; the search
+        variable's exact bracket; the requirement's outcome."""
+        b = self.bracket
+        return {"lower": self.low, "upper": self.high, "unit": self.measure.unit,
+                "limited_by": _limited_by(self.measure, b.witness, b.upper),
+                "search_lower_exact": format_fraction(b.lower),
+                "search_upper_exact": None if b.upper is None else format_fraction(b.upper),
+                "witness": None if b.witness is None else b.witness.as_dict(),
+                "requirement": json_float(self.requirement),
+                "outcome": None if self.outcome is None else self.outcome.value,
+                "passed": self.passed, "note": "; ".join(x for x in (b.note, self.note) if x)}
+
+
+def _tester(family: UncertainPolynomial, measure: Measure, work: Work, max_boxes: int):
+    def test(x: Fraction) -> tuple[Verdict, Witness | None]:
+        res = decide(measure.family_at(family, x), max_seconds=max(work.deadline - time.perf_counter(), 0.01),
+                     max_boxes=max_boxes)
+        work.clock_fired |= res.safety_stop
+        tell("tested", scale=x, verdict=res.verdict)
+        return res.verdict, res.witness
+    return test
+
+
+def decide_criterion(family: UncertainPolynomial, measure: Measure, required: Fraction, max_boxes: int,
+                     max_seconds: float) -> tuple[Verdict | None, Witness | None, bool]:
+    """Decide "the criterion reaches ``required``" directly: proven at the strict rational x,
+    refuted at the lenient one. Returns (STABLE = met, UNSTABLE = not met, None = open in
+    the 1e-12 gap or the budget), the witness, and whether the clock stopped it."""
+    deadline = time.perf_counter() + max_seconds
+    strict, lenient = measure.x_of(required, +1), measure.x_of(required, -1)
+    res = decide(measure.family_at(family, strict), max_seconds=max_seconds, max_boxes=max_boxes)
+    if res.verdict is not Verdict.UNSTABLE or strict == lenient:
+        verdict = None if res.verdict is Verdict.UNDECIDED else res.verdict
+        return verdict, res.witness, res.safety_stop
+    again = decide(measure.family_at(family, lenient), max_seconds=max(deadline - time.perf_counter(), 0.01),
+                   max_boxes=max_boxes)
+    if again.verdict is Verdict.UNSTABLE:
+        return Verdict.UNSTABLE, again.witness, again.safety_stop
+    return None, None, res.safety_stop or again.safety_stop
+
+
+def measure_criterion(family: UncertainPolynomial, measure: Measure, required: Fraction | None = None,
+                      rel_tol: float = 1e-6, max_boxes: int = 500, max_tests: int = 32,
+                      max_seconds: float = 600.0, stable: bool | None = None,
+                      requirement_boxes: int = 5000) -> Criterion:
+    """Certified bracket on one criterion over the family's box, and the requirement's
+    outcome (through the one pass/fail rule, on x). ``stable``: robust stability when
+    already decided (True), else it is decided first. A requirement the bracket leaves open
+    is decided directly with ``requirement_boxes`` boxes, as in every command."""
+    work = Work(max_tests, time.perf_counter() + max_seconds)
+    tol = Fraction(rel_tol)
+    test = _tester(family, measure, work, max_boxes)
+    if stable is None:
+        work.tests += 1
+        verdict, witness = test(Fraction(0))
+        stable = verdict is Verdict.STABLE
+        if not stable:
+            note = ("not robustly stable: the criterion is not met anywhere" if verdict is Verdict.UNSTABLE
+                    else "robust stability itself is undecided")
+            bracket = Bracket(Fraction(0), Fraction(0) if verdict is Verdict.UNSTABLE else None,
+                              witness=witness, note=note)
+            return _with_requirement(family, measure, bracket, required, requirement_boxes, work)
+    elif not stable:
+        bracket = Bracket(Fraction(0), Fraction(0), note="not robustly stable: the criterion is not met anywhere")
+        return _with_requirement(family, measure, bracket, required, requirement_boxes, work)
+    bracket = bisect_margin(test, measure.end, measure.end_testable, tol, work,
+                            start=measure.start)
+    if bracket.upper is None and not measure.end_testable:
+        bracket = replace(bracket, upper=measure.end)  # the end itself is never met (a point, r = 0)
+    return _with_requirement(family, measure, bracket, required, requirement_boxes, work)
+
+
+def _with_requirement(family: UncertainPolynomial, measure: Measure, bracket: Bracket,
+                      required: Fraction | None, max_boxes: int, work: Work) -> Criterion:
+    if required is None:
+        return Criterion(measure, bracket)
+    strict, lenient = measure.x_of(required, +1), measure.x_of(required, -1)
+    outcome = requirement_outcome(strict, None, bracket.lower, None)
+    if outcome is Outcome.OPEN:
+        outcome = requirement_outcome(lenient, None, None, bracket.upper)
+    if outcome is Outcome.OPEN:  # the bracket leaves it open: decide it directly
+        verdict, witness, _ = decide_criterion(family, measure, required, max_boxes,
+                                               max(work.deadline - time.perf_counter(), 0.01))
+        outcome = requirement_outcome(strict, verdict)
+        if verdict is Verdict.STABLE and bracket.lower < strict:
+            bracket = replace(bracket, lower=strict)
+        elif verdict is Verdict.UNSTABLE and (bracket.upper is None or bracket.upper > lenient):
+            bracket = replace(bracket, upper=lenient, witness=witness)
+    return Criterion(measure, bracket, required, outcome)
+
+
+def for_requirements(requirements: object) -> Sequence[tuple[Measure, Fraction]]:
+    """(measure, value) for every criterion of :data:`CRITERIA` a case's requirements ask."""
+    out = []
+    for measure in CRITERIA.values():
+        value = getattr(requirements, REQUIREMENT_OF[measure.name], None)
+        if value is not None:
+            out.append((measure, value))
+    return out
