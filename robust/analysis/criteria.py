@@ -135,8 +135,9 @@ GAIN_BOTH = Measure("gain_margin_db", "gain margin (gain raised or lowered)", "d
                     _gain_value, _gain_x)
 GAIN_DOWN = Measure("gain_margin_db_lower_direction", "gain margin (gain lowered)", "dB", _lower_gain,
                     Fraction(1), Fraction(10**6 - 1), True, _gain_value, _gain_x)
-PHASE = Measure("phase_margin_deg", "phase margin", "deg", phase_family, _phase_x(Fraction(30), 1),
-                _phase_x(Fraction(179), -1), True, _phase_value, _phase_x)
+# first try about 30 degrees (tan^2 15 deg = 7 - 4 sqrt 3 = 0.0718); cap about 179 degrees
+PHASE = Measure("phase_margin_deg", "phase margin", "deg", phase_family, Fraction(718, 10**4),
+                Fraction(13130), True, _phase_value, _phase_x)
 DAMPING = Measure("damping_ratio", "damping ratio", "", sector_family, Fraction(1, 4), Fraction(1), False,
                   damping_of, lambda zeta, side: damping_parameter(zeta, side))
 RADIUS = Measure("spectral_radius", "spectral radius", "", lambda f, x: radius_family(f, 1 - x),
@@ -242,14 +243,46 @@ class Criterion:
                 "passed": self.passed, "note": "; ".join(x for x in (b.note, self.note) if x)}
 
 
-def _tester(family: UncertainPolynomial, measure: Measure, work: Work, max_boxes: int):
+def _tester(family: UncertainPolynomial, measure: Measure, work: Work, max_boxes: int, last: list):
     def test(x: Fraction) -> tuple[Verdict, Witness | None]:
         res = decide(measure.family_at(family, x), max_seconds=max(work.deadline - time.perf_counter(), 0.01),
                      max_boxes=max_boxes)
         work.clock_fired |= res.safety_stop
         tell("tested", scale=x, verdict=res.verdict)
+        last[:] = [x]
         return res.verdict, res.witness
     return test
+
+
+#: Exact decisions one witness may spend sliding back to its own critical value.
+_TIGHTEN_STEPS = 48
+
+
+def _tightener(family: UncertainPolynomial, measure: Measure, tol: Fraction, last: list):
+    """witness -> (x', witness'): the witness's parameter point alone (a degenerate box, so
+    each decision is one polynomial, or one extra gain or lag), bisected down to the least x
+    at which that point fails, within ``tol``. Counted in decisions, never in seconds."""
+    from ..model.family import Box
+
+    k = len(family.names)
+
+    def tighten(witness: Witness) -> tuple[Fraction, Witness]:
+        point = tuple(witness.point[:k])
+        alone = family.with_box(Box(family.names, point, point))
+        low, high, best = Fraction(0), last[0], witness
+        for _ in range(_TIGHTEN_STEPS):
+            if high - low <= tol * high / 4:
+                break
+            mid = short_between(low + (high - low) / 4, high - (high - low) / 4) or (low + high) / 2
+            res = decide(measure.family_at(alone, mid), max_boxes=64)
+            if res.verdict is Verdict.UNSTABLE and res.witness is not None:
+                high, best = mid, res.witness
+            elif res.verdict is Verdict.STABLE:
+                low = mid
+            else:
+                break
+        return high, best
+    return tighten
 
 
 def decide_criterion(family: UncertainPolynomial, measure: Measure, required: Fraction, max_boxes: int,
@@ -280,7 +313,8 @@ def measure_criterion(family: UncertainPolynomial, measure: Measure, required: F
     is decided directly with ``requirement_boxes`` boxes, as in every command."""
     work = Work(max_tests, time.perf_counter() + max_seconds)
     tol = Fraction(rel_tol)
-    test = _tester(family, measure, work, max_boxes)
+    last: list = []
+    test = _tester(family, measure, work, max_boxes, last)
     if stable is None:
         work.tests += 1
         verdict, witness = test(Fraction(0))
@@ -295,7 +329,7 @@ def measure_criterion(family: UncertainPolynomial, measure: Measure, required: F
         bracket = Bracket(Fraction(0), Fraction(0), note="not robustly stable: the criterion is not met anywhere")
         return _with_requirement(family, measure, bracket, required, requirement_boxes, work)
     bracket = bisect_margin(test, measure.end, measure.end_testable, tol, work,
-                            start=measure.start)
+                            start=measure.start, tighten=_tightener(family, measure, tol, last))
     if bracket.upper is None and not measure.end_testable:
         bracket = replace(bracket, upper=measure.end)  # the end itself is never met (a point, r = 0)
     return _with_requirement(family, measure, bracket, required, requirement_boxes, work)

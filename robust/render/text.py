@@ -122,6 +122,9 @@ def render_check(case, result) -> str:
     fam = case.family
     lines = [f"Case: {case.title}   [{case.path}]",
              f"Family: degree {fam.degree}, {len(fam.names)} parameters, {_dependence_words(fam.kind)}"]
+    if fam.discrete:
+        lines.append("Discrete time: stable means every root strictly inside the unit circle, decided "
+                     "exactly on the bilinear image w = (z - 1)/(z + 1)")
     lines.append(f"Nominal: {result.nominal.words}")
     headline = result.verdict.headline
     lines.append(f"Verdict: {headline}")
