@@ -111,7 +111,8 @@ def test_routh_discrete_on_the_command_line():
     done = runner.invoke(main, ["routh", "--discrete", "(z - 0.5)*(z^2 + 0.64)", "--json"])
     assert done.exit_code == 0
     data = json.loads(done.stdout)
-    assert data["roots"] == {"inside": 3, "on_circle": 0, "outside": 0} and data["stable"] is True
+    assert data["roots"] == {"inside": 3, "on_circle": 0, "outside": 0, "open_right": 0, "imaginary_axis": 0,
+                             "open_left": 3} and data["stable"] is True
     assert [row["power"] for row in data["rows"]] == [3, 2, 1, 0]
     done = runner.invoke(main, ["routh", "--discrete", "z^2 - 2.5*z + 1"])  # roots 2 and 1/2
     assert done.exit_code == 0 and "1 outside" in done.stdout and "unstable in discrete time" in done.stdout

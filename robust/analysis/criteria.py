@@ -28,8 +28,15 @@ from fractions import Fraction
 
 from ..exact.numbers import format_fraction, json_float, short_between
 from ..exact.regions import damping_of, damping_parameter
-from ..model.family import (LOOP_GAIN, PHASE_LAG, UncertainPolynomial, gain_family, phase_family,
-                            radius_family, sector_family)
+from ..model.family import (
+    LOOP_GAIN,
+    PHASE_LAG,
+    UncertainPolynomial,
+    gain_family,
+    phase_family,
+    radius_family,
+    sector_family,
+)
 from .bracket import Bracket, Work, bisect_margin
 from .outcomes import Outcome, Verdict, requirement_outcome
 from .progress import tell
@@ -135,10 +142,10 @@ GAIN_BOTH = Measure("gain_margin_db", "gain margin (gain raised or lowered)", "d
                     _gain_value, _gain_x)
 GAIN_DOWN = Measure("gain_margin_db_lower_direction", "gain margin (gain lowered)", "dB", _lower_gain,
                     Fraction(1), Fraction(10**6 - 1), True, _gain_value, _gain_x)
-# first try about 30 degrees (tan^2 15 deg = 7 - 4 sqrt 3 = 0.0718); cap about 179 degrees
-PHASE = Measure("phase_margin_deg", "phase margin", "deg", phase_family, Fraction(718, 10**4),
+# first try about 10 degrees (tan^2 5 deg = 0.00765), doubling up; cap about 179 degrees
+PHASE = Measure("phase_margin_deg", "phase margin", "deg", phase_family, Fraction(765, 10**5),
                 Fraction(13130), True, _phase_value, _phase_x)
-DAMPING = Measure("damping_ratio", "damping ratio", "", sector_family, Fraction(1, 4), Fraction(1), False,
+DAMPING = Measure("damping_ratio", "damping ratio", "", sector_family, Fraction(1, 16), Fraction(1), False,
                   damping_of, lambda zeta, side: damping_parameter(zeta, side))
 RADIUS = Measure("spectral_radius", "spectral radius", "", lambda f, x: radius_family(f, 1 - x),
                  Fraction(1, 20), Fraction(1), False, lambda x: 1 - x, lambda r, side: 1 - r,
@@ -196,6 +203,19 @@ class Criterion:
     requirement: Fraction | None = None
     outcome: Outcome | None = None
     note: str = ""
+    #: The sample time of a discrete-time case (seconds), for the spectral radius's
+    #: continuous-time reading; None when not given.
+    sample_time: Fraction | None = None
+
+    def decay_equivalent(self) -> tuple[float, float | None] | None:
+        """For the spectral radius with a sample time: the worst-case decay rate -ln(r)/T
+        (1/s) as (lower, upper), rounded outwards; None otherwise."""
+        if self.measure is not RADIUS or self.sample_time is None or self.high is None:
+            return None
+        period = float(self.sample_time)
+        low = -math.log(self.high) / period * (1 - 1e-12) if self.high < 1 else 0.0
+        high = None if not self.low else -math.log(self.low) / period * (1 + 1e-12)
+        return low, high
 
     @property
     def passed(self) -> bool | None:
@@ -240,7 +260,17 @@ class Criterion:
                 "witness": None if b.witness is None else b.witness.as_dict(),
                 "requirement": json_float(self.requirement),
                 "outcome": None if self.outcome is None else self.outcome.value,
-                "passed": self.passed, "note": "; ".join(x for x in (b.note, self.note) if x)}
+                "passed": self.passed, "note": "; ".join(x for x in (b.note, self.note) if x),
+                **self._equivalent()}
+
+    def _equivalent(self) -> dict[str, object]:
+        decay = self.decay_equivalent()
+        if decay is None:
+            return {}
+        low, high = decay
+        return {"decay_rate_equivalent": {"lower": low, "upper": high, "unit": "1/s",
+                                          "sample_time": json_float(self.sample_time)},
+                "settling_time_2pct_at_most": None if low <= 0 else 4 / low}
 
 
 def _tester(family: UncertainPolynomial, measure: Measure, work: Work, max_boxes: int, last: list):
@@ -311,7 +341,9 @@ def measure_criterion(family: UncertainPolynomial, measure: Measure, required: F
     outcome (through the one pass/fail rule, on x). ``stable``: robust stability when
     already decided (True), else it is decided first. A requirement the bracket leaves open
     is decided directly with ``requirement_boxes`` boxes, as in every command."""
-    work = Work(max_tests, time.perf_counter() + max_seconds)
+    # two undecided tests end the search: near the first value it cannot decide, the
+    # families of these criteria (degree 2n, squared coefficients) rarely become decidable
+    work = Work(max_tests, time.perf_counter() + max_seconds, max_undecided=2)
     tol = Fraction(rel_tol)
     last: list = []
     test = _tester(family, measure, work, max_boxes, last)

@@ -33,8 +33,8 @@ from fractions import Fraction
 
 from ..exact.numbers import json_float, short_between
 from ..exact.routh import routh_table
-from ..model.family import UncertainPolynomial
 from ..model.case import REQUIREMENTS
+from ..model.family import UncertainPolynomial
 from .bracket import Bracket, Work, bisect_margin, float_down, float_up, just_below, scaled_tester
 from .criteria import REQUIREMENT_OF, Criterion, criteria_for, measure_criterion
 from .crossings import DEFAULT_CAP, exact_interval_margin, ray_upper_bound, tightener
@@ -167,7 +167,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
     with_criteria
         Also bracket the gain and phase margins (loops), the damping ratio and the spectral
         radius (discrete time): :mod:`.criteria`, each with half the boxes and as many
-        decisions.
+        decisions (the search stops at its first undecided one).
 
     Examples
     --------
@@ -194,16 +194,21 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
 
     test = scaled_tester(family, scaling.box, work, max_boxes)
 
-    criteria: tuple[Criterion, ...] = ()
-    if with_criteria:
-        asked = {}
-        for name, value in (requirements.asked() if requirements is not None else ()):
-            asked[name] = value
-        criteria = tuple(
-            measure_criterion(family, measure, asked.get(REQUIREMENT_OF[measure.name]),
-                              max_boxes=max_boxes, max_tests=max_tests,
-                              max_seconds=max(work.deadline - time.perf_counter(), 0.01),
-                              requirement_boxes=requirement_boxes)
+    def measured(bracket: Bracket) -> tuple[Criterion, ...]:
+        """The criteria, told whether rho*'s bracket already decides robust stability (proven
+        at a scale >= 1, or a witness at a scale <= 1)."""
+        if not with_criteria:
+            return ()
+        stable = True if bracket.lower >= 1 else False if (
+            bracket.witness is not None and bracket.upper is not None and bracket.upper <= 1) else None
+        asked = dict(requirements.asked()) if requirements is not None else {}
+        sample_time = getattr(case_or_family, "sample_time", None)  # the radius's reading in 1/s
+        return tuple(
+            replace(measure_criterion(family, measure, asked.get(REQUIREMENT_OF[measure.name]),
+                                      max_boxes=max(max_boxes // 2, 1), max_tests=max_tests,
+                                      max_seconds=max(work.deadline - time.perf_counter(), 0.01),
+                                      requirement_boxes=requirement_boxes, stable=stable),
+                    sample_time=sample_time)
             for measure in criteria_for(family))
 
     def done(bracket: Bracket, method: str, limit: ScaleEnd) -> MarginResult:
@@ -223,6 +228,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
                     bracket = replace(bracket, upper=req, witness=direct.witness)
                     if limit.kind is not LimitKind.CROSSING or limit.scale > req:
                         limit = crossing_end(family, bracket)
+        criteria = measured(bracket)
         return MarginResult(bracket, method, decay, req, outcome, limit, time.perf_counter() - started,
                             direct, work.clock_fired, criteria)
 

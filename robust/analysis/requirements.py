@@ -9,8 +9,8 @@ from fractions import Fraction
 
 from ..exact.numbers import approx_text, format_fraction, json_float
 from ..model.family import UncertainPolynomial, shifted_family
-from .outcomes import BoxProblem, Outcome, Verdict, box_problem, requirement_outcome
 from .criteria import MEASURE_OF_REQUIREMENT, decide_criterion
+from .outcomes import BoxProblem, Outcome, Verdict, box_problem, requirement_outcome
 from .scaling import Scaling
 from .verdict import Witness, decide
 

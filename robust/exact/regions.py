@@ -64,8 +64,11 @@ class DiskCounts:
         return f"{self.outside} outside {circle}, {self.on_circle} on it, {self.inside} inside it"
 
     def as_dict(self) -> dict[str, int]:
-        """JSON: inside, on_circle, outside (DESIGN.md section 5)."""
-        return {"inside": self.inside, "on_circle": self.on_circle, "outside": self.outside}
+        """JSON: inside, on_circle, outside (DESIGN.md section 5), and the same counts under
+        the half-plane names every command's roots object carries (the roots of the bilinear
+        image: open_left = inside, imaginary_axis = on_circle, open_right = outside)."""
+        return {"inside": self.inside, "on_circle": self.on_circle, "outside": self.outside,
+                "open_right": self.outside, "imaginary_axis": self.on_circle, "open_left": self.inside}
 
 
 def _binomial_row(k: int, sign: int) -> tuple:

@@ -211,9 +211,16 @@ def render_trace(case, graph) -> str:
     data, bounds = _trace(case, graph)
     lines = [f"Case: {case.title}   [{case.path}]",
              f"Family: degree {data['degree']}, {_dependence_words(data['family_class'])}", ""]
+    var = "s"
+    if case.family.discrete:
+        var = "w"
+        lines[-1:] = ["Discrete time: these are the coefficients of the bilinear image q(w), "
+                      "w = (z - 1)/(z + 1), that the engine decides; p(z) as written:",
+                      "  " + " + ".join(f"({c.to_text(case.family.names)})*z^{len(case.family.written) - 1 - k}"
+                                        for k, c in enumerate(case.family.written) if not c.is_zero), ""]
     for c, b in zip(data["coefficients"], bounds, strict=True):
         deps = ", ".join(f"{n} ({d})" for n, d in c["parameters"].items()) or "constant"
-        lines.append(f"a{c['power']} (s^{c['power']}) = {c['formula']}")
+        lines.append(f"a{c['power']} ({var}^{c['power']}) = {c['formula']}")
         lines.append(f"    range [{approx_text(b.low)}, {approx_text(b.high)}] ({c['bound']}); "
                      f"driven by: {deps}")
     lines.append("")
@@ -274,6 +281,12 @@ def render_margin(case, result) -> str:
         lines.append(f"{c.measure.words.capitalize()}, worst case over the box: {c.text()}")
         if c.limit_text():
             lines.append(f"  limited by: {c.limit_text()}")
+        decay = c.decay_equivalent()
+        if decay is not None and decay[0] > 0:
+            high = "none" if decay[1] is None else f"{decay[1]:.6g}"
+            lines.append(f"  continuous-time reading (sample time {approx_text(c.sample_time)} s): decay rate "
+                         f"-ln(r)/T in [{decay[0]:.6g}, {high}] 1/s, 2 % settling within about "
+                         f"{4 / decay[0]:.4g} s")
         if c.bracket.note:
             lines.append(f"  note: {c.bracket.note}")
     for name, required, outcome in result.outcomes():
