@@ -30,3 +30,31 @@ import warnings  # noqa: E402
 with warnings.catch_warnings(), contextlib.suppress(ImportError):
     warnings.simplefilter("ignore", DeprecationWarning)
     import hypothesis.extra._patching  # noqa: F401
+
+import pytest  # noqa: E402
+
+#: The work budget of the reports the report tests share: small, so that every shipped case
+#: is analysed in seconds, and counted, so that the reports are the same on any machine.
+REPORT_BUDGET = {"max_boxes": 2000, "search_boxes": 200, "search_tests": 12, "yield_draws": 2000, "seed": 0}
+
+
+@pytest.fixture(scope="session")
+def report_of(tmp_path_factory):
+    """``report_of(stem)`` -> (analysis, written report files) of the shipped case
+    cases/<stem>.toml, built once per session with :data:`REPORT_BUDGET` (read-only)."""
+    from pathlib import Path
+
+    from robust.analysis.signoff import analyse
+    from robust.model.case import load_case
+    from robust.render.writer import write_report
+
+    cases = Path(__file__).resolve().parent.parent / "cases"
+    built: dict[str, tuple] = {}
+
+    def build(stem: str) -> tuple:
+        if stem not in built:
+            analysis = analyse(load_case(cases / f"{stem}.toml"), **REPORT_BUDGET)
+            built[stem] = (analysis, write_report(analysis, tmp_path_factory.mktemp(stem) / "report"))
+        return built[stem]
+
+    return build

@@ -30,19 +30,13 @@ from robust.render.writer import write_report
 
 CASES = sorted((Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
 IDS = [path.stem for path in CASES]
-QUICK = {"max_boxes": 2000, "search_boxes": 200, "search_tests": 12, "yield_draws": 2000, "seed": 0}
 PNG_MAGIC = b"\x89PNG\r\n\x1a\n"
 
 
 @pytest.fixture(scope="module")
-def reports(tmp_path_factory):
-    """Each case's analysis and report, built once for the module (read-only afterwards)."""
-    out = {}
-    for path in CASES:
-        analysis = analyse(load_case(path), **QUICK)
-        files = write_report(analysis, tmp_path_factory.mktemp(path.stem) / "report")
-        out[path.stem] = (analysis, files)
-    return out
+def reports(report_of):
+    """Each case's analysis and report, built once for the session (read-only afterwards)."""
+    return {path.stem: report_of(path.stem) for path in CASES}
 
 
 class _Page(HTMLParser):

@@ -7,7 +7,9 @@ Architecture (imports flow downwards only):
     content       what the report says, in order, as neutral blocks (blocks.py)
     certificate   the verdict's evidence: Routh arrays, witness, undecided remainder
     figures       the pictures (matplotlib, Agg canvas, imported lazily)
-    figdata       the numbers behind the pictures (value set, roots), numpy only
+    loopfigure    the loop-response picture (magnitude and phase of L = N/D)
+    canvas        the blank figure, its PNG bytes and the "not drawn" picture
+    figdata       the numbers behind the pictures (value set, roots, loop response), numpy only
     data          result.json: the other commands' JSON in one object
     text          terminal text of every command
     fmt, blocks   number formatting; the block types

@@ -7,11 +7,13 @@ yield; the figures; the cautions; the record (version, date, case checksum, sett
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from fractions import Fraction
 from pathlib import Path
 from typing import Any
 
 from ..analysis.certificate import digest
+from ..analysis.criteria import REQUIREMENT_OF, Criterion
 from ..analysis.outcomes import Outcome, Verdict
 from ..analysis.signoff import Analysis
 from ..exact.numbers import approx_text
@@ -30,7 +32,7 @@ from .blocks import (
     Table,
 )
 from .certificate import certificate_section, undecided_blocks, witness_section
-from .fmt import bound_text
+from .fmt import bound_text, criterion_ends
 from .text import margin_reading
 
 __all__ = ["CAUTIONS", "JOB_LINE", "build_document", "outcome", "rerun_command"]
@@ -144,6 +146,7 @@ def _polynomial(analysis: Analysis) -> Section:
     blocks: list = [
         Paragraph((f"As written in the case file (variable {case.variable}):",)),
         Preformatted(written),
+        *_discrete_blocks(case),
         Paragraph((f"Degree {family.degree}. The coefficients as robust holds them, highest power first, "
                    "with their range over the tolerance box. Denominators are cleared and the whole "
                    "polynomial may be scaled by a constant factor; neither moves the roots.",)),
@@ -159,6 +162,25 @@ def _polynomial(analysis: Analysis) -> Section:
         blocks.append(Paragraph(("Cleared factor (keeps one sign over the box): ", Code(family.cleared)),
                                 "note"))
     return Section("Characteristic polynomial", tuple(blocks), anchor="polynomial")
+
+
+def _discrete_blocks(case) -> list:
+    """For a polynomial in z: the characteristic polynomial as written, and how its
+    stability (every root inside the unit circle) is decided."""
+    family = case.family
+    if not family.discrete:
+        return []
+    z, n = case.variable, len(family.written) - 1
+    terms = "\n".join(f"{z}^{n - k}: {c.to_text(family.names)}" for k, c in enumerate(family.written))
+    return [
+        Paragraph((f"The characteristic polynomial in {z}, its coefficients highest power first:",)),
+        Preformatted(terms),
+        Paragraph((f"Discrete time: the loop is stable when every root in {z} lies strictly "
+                   "inside the unit circle. robust decides that exactly on the bilinear image "
+                   f"w = ({z} − 1)/({z} + 1), which maps the inside of the circle onto the open left "
+                   "half-plane. The table below lists the coefficients of that polynomial in w (multiplied "
+                   f"by (1 − w)^{n} to clear the denominators) with their ranges over the tolerance box.",)),
+    ]
 
 
 def _verdict(analysis: Analysis, folder: str = "DIR") -> Section:
@@ -220,6 +242,7 @@ def _margins(analysis: Analysis) -> Section:
     if m.decay is not None:
         rows.append(row("decay-rate margin σ*: every root has Re s < −σ", m.decay.bracket,
                         data["decay_rate"], "margin.decay_rate", "decay_rate"))
+    rows += [_criterion_row(c, data, requirements) for c in m.criteria]
     blocks: list = [Table(("quantity", "certified bracket", "exact value", "requirement", "outcome"),
                           tuple(rows)),
                     Paragraph(("A certified bracket [lower, upper]: the family is proven stable at the "
@@ -250,7 +273,69 @@ def _margins(analysis: Analysis) -> Section:
         items.append(("Requirements were not decided directly because the design is not robustly "
                       "stable; the outcome above comes from the brackets.",))
     blocks.append(ItemList(tuple(items)))
+    if m.criteria:
+        blocks += _criteria_notes(m.criteria)
     return Section("Margins and requirements", tuple(blocks), anchor="margins")
+
+
+def _criterion_key(criterion: Criterion) -> tuple[str, ...]:
+    """Where a criterion's object sits in result.json's margin (the lowered gain margin is
+    held inside the raised one's)."""
+    if criterion.measure.name == "gain_margin_db_lower_direction":
+        return ("gain_margin_db", "lower_direction")
+    return (criterion.measure.name,)
+
+
+def _criterion_row(criterion: Criterion, data: dict[str, Any],
+                   requirements: dict[str, tuple[Fraction, Outcome]]) -> tuple:
+    """One criterion: its certified bracket in its unit, rounded outwards, and the outcome
+    of the requirement that asks it (from :meth:`MarginResult.outcomes`)."""
+    path = _criterion_key(criterion)
+    node: Any = data
+    for part in path:
+        node = node[part]
+    key = "margin." + ".".join(path)
+    low, high = criterion_ends(criterion)
+    unit = f" {criterion.measure.unit}" if criterion.measure.unit else ""
+    if low is None:
+        parts: tuple = ("at most ", Num(high or "-", node["upper"], key + ".upper"), unit)
+    elif high is None:
+        parts = ("at least ", Num(low, node["lower"], key + ".lower"), unit)
+    else:
+        parts = ("[", Num(low, node["lower"], key + ".lower"), ", ", Num(high, node["upper"], key + ".upper"),
+                 "]" + unit)
+    label = criterion.measure.words + (f", {criterion.measure.unit}" if criterion.measure.unit else "")
+    name = REQUIREMENT_OF[criterion.measure.name]
+    if name in requirements:
+        required, result = requirements[name]
+        sign = "≤" if criterion.measure.smaller_is_better else "≥"
+        both = " (raised and lowered)" if name == "gain_margin_db" else ""
+        asked = Cell((f"{sign} {approx_text(required)}{unit}{both}",), numeric=True)
+        verdict = Cell((_badge(result),))
+    else:
+        asked, verdict = Cell(("none",)), Cell(("-",))
+    return (Cell((label,)), Cell(parts, numeric=True), Cell(("-",)), asked, verdict)
+
+
+def _criteria_notes(criteria: Sequence[Criterion]) -> list:
+    """What limits each criterion (its witness), and the reading of the criteria's brackets."""
+    limits: list = []
+    for criterion in criteria:
+        limit = criterion.limit_text()
+        if limit:
+            limits.append((f"{criterion.measure.words.capitalize()} limited by: {limit}.",))
+        note = "; ".join(x for x in (criterion.bracket.note, criterion.note) if x)
+        if note:
+            limits.append((f"{criterion.measure.words.capitalize()} note: {note}.",))
+    blocks: list = [Paragraph((
+        "Criteria: each bracket holds for every parameter point of the tolerance box. The guaranteed "
+        "end (the lower end; for the spectral radius the upper end, every root inside that circle) is "
+        "proven; the other end holds a verified witness, the parameter point named below with the extra "
+        "loop gain or phase lag, or the sector or circle, at which it fails. A gain margin requirement "
+        "asks both directions, the gain raised and lowered; its outcome is shown on both rows.",), "note")]
+    if limits:
+        blocks.append(ItemList(tuple(limits)))
+    return blocks
 
 
 def _rank_bracket(bracket, limit) -> str:
@@ -333,25 +418,63 @@ def _figures(analysis: Analysis) -> Section:
         "for all ω and one member is stable. Each panel is scaled so that the rectangle fills [−1, 1] in "
         "both directions; the origin is given in the same units. " + inside,
         "value set rectangles and sampled points per frequency")
-    cloud = Figure(
-        "root_cloud",
-        "(b) Roots of randomly drawn members (dots), the nominal roots (×) and the imaginary axis "
-        "(dashed). Roots right of the dashed line are unstable." +
-        (" Squares: the roots of the witness." if analysis.check.witness is not None else ""),
-        "root cloud")
+    cloud = _root_cloud_figure(analysis)
+    loop = _loop_figure(analysis)
     graph = Figure(
         "dependency_graph",
-        "(c) Which parameter drives which coefficient. Solid: the coefficient grows with the parameter "
+        "(d) Which parameter drives which coefficient. Solid: the coefficient grows with the parameter "
         "over the whole box; dashed: it falls; dotted: mixed.",
         "dependency graph parameters to coefficients")
     partition = Figure(
         "partition",
-        "(d) The proof's partition of the box (certificate.json), projected on the two parameters split "
+        "(e) The proof's partition of the box (certificate.json), projected on the two parameters split "
         "most: each rectangle is a piece (overlapping where pieces differ only in the other parameters), "
         "grey when proven by the Bernstein test of a_n, a_0 and Delta_(n-1), hatched when proven by the "
         "Kharitonov polynomials of its own overbound, crossed when not proven within the budget.",
         "partition of the box into proven pieces")
-    return Section("Figures", (value_set, cloud, graph, partition), anchor="figures", new_page=True)
+    return Section("Figures", (value_set, cloud, loop, graph, partition), anchor="figures", new_page=True)
+
+
+def _root_cloud_figure(analysis: Analysis) -> Figure:
+    case = analysis.case
+    witness = " Squares: the roots of the witness." if analysis.check.witness is not None else ""
+    if case.family.discrete:
+        return Figure(
+            "root_cloud",
+            f"(b) Roots in {case.variable} of randomly drawn members (dots), the nominal roots (×) and "
+            f"the unit circle (dashed). Roots outside the circle are unstable." + witness,
+            "root cloud in the z-plane with the unit circle")
+    zeta = case.requirements.damping_ratio
+    sector = (f" Dotted: the two rays Re s = −ζ|s| of the required damping ratio ζ = {approx_text(zeta)}; "
+              "roots left of both rays meet it." if zeta is not None else "")
+    return Figure(
+        "root_cloud",
+        "(b) Roots of randomly drawn members (dots), the nominal roots (×) and the imaginary axis "
+        "(dashed). Roots right of the dashed line are unstable." + sector + witness,
+        "root cloud")
+
+
+def _loop_figure(analysis: Analysis) -> Figure:
+    case = analysis.case
+    if not case.family.loop:
+        return Figure("loop_response", "(c) Loop response: not drawn, the case is not written as a loop "
+                      "(plant and controller).", "loop response not drawn")
+    if not case.family.discrete:
+        axis = "against ω in rad/s"
+    elif case.sample_time is not None:
+        axis = ("on the unit circle z = e^(jωT), against ω in rad/s up to π/T "
+                f"(T = {approx_text(case.sample_time)} s)")
+    else:
+        axis = "on the unit circle z = e^(jθ), against θ = ωT in rad/sample up to π"
+    return Figure(
+        "loop_response",
+        f"(c) Loop L = N/D (plant times controller), magnitude in dB and phase in degrees, {axis}: the "
+        "nominal design (black) and the randomly drawn members (grey). Marked: the member that limits each "
+        "certified margin (its witness), where its loop meets the critical point: the circle at its gain "
+        "crossover (|L| = 1, the phase margin), the square or triangle at its phase crossover (the gain "
+        "margin, gain raised or lowered). The brackets in the legend are the certified ones; the curves are "
+        "drawn in floating point and decide nothing.",
+        "loop magnitude and phase against frequency")
 
 
 def _cautions() -> Section:

@@ -9,12 +9,22 @@ rectangle whose four corners are the Kharitonov polynomials at j omega (Dasgupta
 the parametric family has its coefficients inside the overbound, so its p(j omega) lies in
 that rectangle; zero exclusion (the origin outside every rectangle) is the frequency-domain
 reading of the theorem.
+
+Loop response. A loop case holds (D, N), den_P den_C and num_P num_C, so that L = N / D.
+For a case in s, L(j omega) = N(j omega) / D(j omega). For a case in z, D and N are held in
+their Hurwitz form, the bilinear image w = (z - 1) / (z + 1) multiplied by the same
+(1 - w)^n; on the unit circle z = e^(j theta) that is w = j tan(theta / 2), and the common
+factor cancels in the ratio, so L(e^(j theta)) = N(j tan(theta/2)) / D(j tan(theta/2))
+(closed form derived here). Both are evaluated in the homogeneous form
+sum a_k (j sin(theta/2))^k cos(theta/2)^(n-k), which stays finite up to theta = pi.
 """
 
 from __future__ import annotations
 
 import itertools
+import math
 from collections.abc import Sequence
+from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
@@ -23,9 +33,13 @@ import numpy as np
 from ..analysis.montecarlo import draw_parameters
 from ..exact.interval import KHARITONOV_PATTERNS
 from ..exact.numbers import to_float
+from ..exact.polynomials import MultiPoly
 from ..model.case import Case
+from ..model.family import LOOP_GAIN, PHASE_LAG
 
-__all__ = ["choose_omegas", "nominal_roots", "polynomial_roots", "sample_draws", "value_set_data"]
+__all__ = ["LoopMark", "choose_omegas", "crossings", "float_rows", "loop_frequencies", "loop_mark",
+           "loop_values", "nominal_roots", "phase_degrees", "polynomial_roots", "sample_draws",
+           "value_set_data", "written_roots"]
 
 
 def sample_draws(case: Case, count: int, seed: int) -> np.ndarray:
@@ -52,11 +66,23 @@ def polynomial_roots(coefficients: np.ndarray) -> np.ndarray:
     return out
 
 
-def nominal_roots(case: Case) -> np.ndarray:
-    """Roots of the nominal polynomial (floats, for pictures)."""
+def nominal_roots(case: Case, written: bool = False) -> np.ndarray:
+    """Roots of the nominal polynomial (floats, for pictures): of the Hurwitz form, or with
+    ``written`` of the polynomial in the user's variable (z for discrete time)."""
     family = case.family
-    coeffs = np.array([[to_float(c) for c in family.coefficients_at(family.nominal)]])
-    return polynomial_roots(coeffs)[0]
+    exact = family.written_at(family.nominal) if written else family.coefficients_at(family.nominal)
+    return polynomial_roots(np.array([[to_float(c) for c in exact]]))[0]
+
+
+def float_rows(polys: Sequence[MultiPoly], draws: np.ndarray) -> np.ndarray:
+    """(N, len(polys)) float values of each polynomial at each row of ``draws`` (pictures only)."""
+    points = np.asarray(draws, dtype=float)
+    return np.stack([p.evaluate_many(points) for p in polys], axis=1)
+
+
+def written_roots(case: Case, draws: np.ndarray) -> np.ndarray:
+    """(N, n) roots of the polynomial as written (in z for discrete time) at each draw."""
+    return polynomial_roots(float_rows(case.family.written, draws))
 
 
 def _round3(x: float) -> float:
@@ -173,3 +199,134 @@ def _down(x: Fraction) -> float:
 def _up(x: Fraction) -> float:
     f = float(x)
     return float(np.nextafter(f, np.inf)) if Fraction(f) < x else f
+
+
+def _frequency_powers(case: Case, frequencies: np.ndarray, degree: int) -> np.ndarray:
+    """(F, n + 1): the factor multiplying each coefficient (highest power first) when a
+    polynomial of the loop is evaluated on the stability boundary (see the module note)."""
+    frequencies = np.asarray(frequencies, dtype=float)
+    powers = np.arange(degree, -1, -1)
+    if not case.family.discrete:
+        return (1j * frequencies[:, None]) ** powers[None, :]
+    theta = frequencies * (to_float(case.sample_time) if case.sample_time is not None else 1.0)
+    half = theta[:, None] / 2
+    return (1j * np.sin(half)) ** powers[None, :] * np.cos(half) ** (degree - powers)[None, :]
+
+
+def loop_values(case: Case, points: np.ndarray, frequencies: Sequence[float] | np.ndarray) -> np.ndarray:
+    """(N, F) complex loop L = N / D at each parameter point (rows) and frequency.
+
+    Frequencies are omega in rad/s for a case in s; for a case in z they are omega in rad/s
+    when the case gives a sample time T (theta = omega T), else theta in rad/sample.
+    Floats, for pictures only; NaN where D vanishes.
+    """
+    den, num = case.family.loop
+    factors = _frequency_powers(case, np.asarray(frequencies, dtype=float), len(den) - 1)
+    d = float_rows(den, points) @ factors.T
+    n = float_rows(num, points) @ factors.T
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(d != 0, n / np.where(d != 0, d, 1), np.nan)
+
+
+def loop_frequencies(case: Case, count: int = 600) -> np.ndarray:
+    """A logarithmic frequency grid around the nominal loop's poles, zeros and closed-loop
+    roots: 1/30 of the smallest to 30 times the largest magnitude (for z: up to theta = pi)."""
+    family = case.family
+    point = np.array([[to_float(v) for v in family.nominal]])
+    roots = [polynomial_roots(float_rows(part, point))[0] for part in family.loop]
+    roots.append(nominal_roots(case))
+    sizes = np.abs(np.concatenate(roots))
+    sizes = sizes[np.isfinite(sizes) & (sizes > 0)]
+    low, high = (float(sizes.min()), float(sizes.max())) if len(sizes) else (1.0, 1.0)
+    if not family.discrete:
+        return np.geomspace(low / 30, high * 30, count)
+    # a Hurwitz-form root w sits at theta = 2 atan|w| on the circle's frequency axis
+    scale = 1 / to_float(case.sample_time) if case.sample_time is not None else 1.0
+    low_theta = min(2 * float(np.arctan(low)) / 30, np.pi / 100)
+    return np.geomspace(low_theta, np.pi, count) * scale
+
+
+def phase_degrees(values: np.ndarray) -> np.ndarray:
+    """Unwrapped phase in degrees along the last axis (frequency), each curve shifted by a
+    multiple of 360 so that it starts in (-270, 90]."""
+    phase = np.degrees(np.unwrap(np.angle(values), axis=-1))
+    start = phase[..., :1]
+    return phase - 360 * np.ceil((start - 90) / 360)
+
+
+def crossings(case: Case, point: np.ndarray, frequencies: np.ndarray, kind: str
+              ) -> list[tuple[float, complex]]:
+    """Where one member's loop crosses |L| = 1 (``kind`` "gain") or the negative real axis
+    (``kind`` "phase"): (frequency, L there), found on the grid and refined by bisection
+    in log frequency. Floats, for pictures only."""
+    def measure(values: np.ndarray) -> np.ndarray:
+        if kind == "gain":
+            return np.log(np.abs(values))
+        return np.where(values.real < 0, values.imag, np.nan)
+
+    def at(f: float) -> complex:
+        return complex(loop_values(case, point[None, :], [f])[0, 0])
+
+    values = loop_values(case, point[None, :], frequencies)[0]
+    g = measure(values)
+    out = []
+    for i in np.nonzero(g[:-1] * g[1:] < 0)[0]:
+        low, high = float(frequencies[i]), float(frequencies[i + 1])
+        side = np.sign(g[i])
+        for _ in range(60):
+            mid = math.sqrt(low * high)
+            value = measure(np.array([at(mid)]))[0]
+            if not np.isfinite(value):
+                break
+            if np.sign(value) == side:
+                low = mid
+            else:
+                high = mid
+        f = math.sqrt(low * high)
+        out.append((f, at(f)))
+    return out
+
+
+@dataclass(frozen=True, slots=True)
+class LoopMark:
+    """The limiting member of a gain or phase margin where its loop meets the critical
+    point: at its gain crossover (phase margin) or its phase crossover (gain margin)."""
+
+    measure: str  # the criterion's name
+    kind: str  # "gain" (|L| = 1) or "phase" (L real negative)
+    frequency: float
+    value: complex  # L there
+    point: np.ndarray  # the member's parameters
+
+    @property
+    def magnitude_db(self) -> float:
+        return 20 * math.log10(abs(self.value))
+
+
+def loop_mark(case: Case, measure: str, limited_by: dict[str, Fraction], frequencies: np.ndarray
+              ) -> LoopMark | None:
+    """Where the member that limits a gain or phase margin (its witness: the parameter point
+    and the extra gain k or phase lag) meets the critical point: of its phase crossovers the
+    one where k |L| is nearest 1, of its gain crossovers the one whose phase lead over -180
+    degrees is nearest the lag. None when no crossover lies on the grid."""
+    names = case.family.names
+    point = np.array([to_float(limited_by[n]) for n in names])
+    if PHASE_LAG in limited_by:
+        kind = "gain"
+        lag = math.degrees(2 * math.atan(math.sqrt(to_float(limited_by[PHASE_LAG]))))
+
+        def distance(value: complex) -> float:
+            return abs((math.degrees(np.angle(value)) + 180) % 360 - lag)
+    elif LOOP_GAIN in limited_by:
+        kind = "phase"
+        gain = to_float(limited_by[LOOP_GAIN])
+
+        def distance(value: complex) -> float:
+            return abs(math.log(abs(value) * gain))
+    else:
+        return None
+    found = crossings(case, point, frequencies, kind)
+    if not found:
+        return None
+    f, value = min(found, key=lambda item: distance(item[1]))
+    return LoopMark(measure, kind, f, value, point)

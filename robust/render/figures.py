@@ -7,10 +7,8 @@ state is touched: each picture is a fresh ``Figure`` on its own Agg canvas.
 
 from __future__ import annotations
 
-import io
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
@@ -18,17 +16,27 @@ import numpy as np
 
 from ..analysis.signoff import Analysis
 from ..exact.numbers import to_float
-from .figdata import choose_omegas, nominal_roots, polynomial_roots, sample_draws, value_set_data
+from .canvas import Picture, not_drawn
+from .canvas import new_figure as _new_figure
+from .canvas import png as _png
+from .figdata import (
+    choose_omegas,
+    nominal_roots,
+    polynomial_roots,
+    sample_draws,
+    value_set_data,
+    written_roots,
+)
+from .loopfigure import loop_response_picture
 
 __all__ = ["FIGURE_NAMES", "Picture", "draw_figures"]
 
 #: File stems of the pictures, in report order.
-FIGURE_NAMES = ("ranking", "value_set", "root_cloud", "dependency_graph", "partition")
+FIGURE_NAMES = ("ranking", "value_set", "root_cloud", "loop_response", "dependency_graph", "partition")
 
 #: Members sampled for the value-set and root-cloud pictures.
 SAMPLED_MEMBERS = 400
 
-_DPI = 150
 _STYLE: dict[str, Any] = {
     "font.family": "DejaVu Sans",
     "font.size": 9.5,
@@ -50,30 +58,6 @@ _STYLE: dict[str, Any] = {
 }
 
 
-@dataclass(frozen=True, slots=True)
-class Picture:
-    """One rendered figure: file stem, PNG bytes and a text alternative."""
-
-    name: str
-    png: bytes
-    alt: str
-
-
-def _new_figure(width: float, height: float):
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
-    figure = Figure(figsize=(width, height), dpi=_DPI, layout="constrained")
-    FigureCanvasAgg(figure)
-    return figure
-
-
-def _png(figure) -> bytes:
-    buffer = io.BytesIO()
-    figure.savefig(buffer, format="png", dpi=_DPI, metadata={"Software": None})
-    return buffer.getvalue()
-
-
 def draw_figures(analysis: Analysis) -> tuple[Picture, ...]:
     """Every picture of the report, in :data:`FIGURE_NAMES` order."""
     import matplotlib
@@ -84,6 +68,7 @@ def draw_figures(analysis: Analysis) -> tuple[Picture, ...]:
             return (ranking_picture(analysis),
                     _not_drawn("value_set", "value set of the coefficient overbound"),
                     _not_drawn("root_cloud", "roots of sampled members"),
+                    _not_drawn("loop_response", "loop responses of sampled members"),
                     dependency_picture(case),
                     _not_drawn("partition", "pieces of the proof"))
         draws = sample_draws(case, SAMPLED_MEMBERS, analysis.settings.seed)
@@ -91,6 +76,7 @@ def draw_figures(analysis: Analysis) -> tuple[Picture, ...]:
             ranking_picture(analysis),
             value_set_picture(case, choose_omegas(case), draws),
             root_cloud_picture(case, draws, analysis.check.witness),
+            loop_response_picture(analysis, draws),
             dependency_picture(case),
             partition_picture(analysis),
         )
@@ -107,14 +93,9 @@ def floats_suffice(case) -> bool:
 
 
 def _not_drawn(name: str, what: str) -> Picture:
-    """A picture that says why it is not drawn."""
-    figure = _new_figure(7.6, 1.2)
-    ax = figure.subplots()
-    ax.set_axis_off()
-    text = (f"Not drawn: the {what} lie beyond the range of floating-point numbers "
-            "(about 1e±270 here); the exact results above cover them.")
-    ax.text(0.5, 0.5, text, ha="center", va="center", fontsize=9, wrap=True)
-    return Picture(name, _png(figure), text)
+    """A picture that says it is not drawn because its numbers lie beyond the floats."""
+    return not_drawn(name, f"Not drawn: the {what} lie beyond the range of floating-point numbers "
+                           "(about 1e±270 here); the exact results above cover them.")
 
 
 # -- (a) value set ------------------------------------------------------------------------
@@ -215,17 +196,22 @@ def value_set_picture(case, omegas: Sequence[float], draws: np.ndarray) -> Pictu
 
 
 def root_cloud_picture(case, draws: np.ndarray, witness=None) -> Picture:
-    """Roots of the sampled members, the nominal roots and the imaginary axis."""
+    """Roots of the sampled members, the nominal roots and the stability boundary: the
+    imaginary axis, or for a polynomial in z its roots as written and the unit circle. With
+    a damping-ratio requirement (s), the sector's boundary rays Re s = -zeta |s| too."""
     family = case.family
-    roots = polynomial_roots(family.coefficients_float(np.asarray(draws, dtype=float))).ravel()
+    discrete = family.discrete
+    draws = np.asarray(draws, dtype=float)
+    roots = (written_roots(case, draws) if discrete
+             else polynomial_roots(family.coefficients_float(draws))).ravel()
     roots = roots[np.isfinite(roots)]
-    nominal = nominal_roots(case)
+    nominal = nominal_roots(case, written=discrete)
     nominal = nominal[np.isfinite(nominal)]
-    figure = _new_figure(7.6, 4.8)
+    figure = _new_figure(7.6, 4.8 if not discrete else 5.6)
     ax = figure.subplots()
     everything = np.concatenate([roots, nominal])
     sizes = np.abs(everything[np.abs(everything) > 0])
-    spread = float(sizes.max() / sizes.min()) if len(sizes) else 1.0
+    spread = float(sizes.max() / sizes.min()) if len(sizes) and not discrete else 1.0
     if spread > 30:
         width = float(np.min(np.abs(nominal[np.abs(nominal) > 0]))) / 2 if np.any(nominal) else 1.0
         ax.set_xscale("asinh", linear_width=width)
@@ -233,13 +219,14 @@ def root_cloud_picture(case, draws: np.ndarray, witness=None) -> Picture:
         note = f"asinh axes: linear within ±{width:.3g}, logarithmic beyond"
     else:
         note = "linear axes"
-    right = roots.real > 0
-    ax.plot(roots.real[~right], roots.imag[~right], linestyle="none", marker=".", markersize=3,
-            color="#777777", alpha=0.6, label=f"roots of {SAMPLED_MEMBERS} sampled members")
-    if right.any():
-        ax.plot(roots.real[right], roots.imag[right], linestyle="none", marker="^", markersize=5,
+    unstable = np.abs(roots) > 1 if discrete else roots.real > 0
+    ax.plot(roots.real[~unstable], roots.imag[~unstable], linestyle="none", marker=".", markersize=3,
+            color="#777777", alpha=0.6, label=f"roots of {len(draws)} sampled members")
+    if unstable.any():
+        ax.plot(roots.real[unstable], roots.imag[unstable], linestyle="none", marker="^", markersize=5,
                 markerfacecolor="white", markeredgecolor="black",
-                label="sampled roots in the right half-plane")
+                label="sampled roots outside the unit circle" if discrete
+                else "sampled roots in the right half-plane")
     ax.plot(nominal.real, nominal.imag, linestyle="none", marker="x", markersize=9,
             markeredgewidth=1.8, color="black", label="nominal roots")
     if witness is not None:
@@ -247,15 +234,28 @@ def root_cloud_picture(case, draws: np.ndarray, witness=None) -> Picture:
         ax.plot(values.real, values.imag, linestyle="none", marker="s", markersize=7,
                 markerfacecolor="none", markeredgecolor="black", markeredgewidth=1.2,
                 label="witness roots")
-    ax.axvline(0, color="black", linestyle="--", linewidth=1.0, label="imaginary axis")
     ax.axhline(0, color="#bbbbbb", linewidth=0.5, zorder=0)
-    low = float(min(everything.real.min(), 0)) if len(everything) else -1.0
-    high = float(max(everything.real.max(), 0)) if len(everything) else 1.0
-    pad = (high - low) * 0.08 or 1.0
-    if spread > 30:
-        ax.set_xlim(low * 1.6 if low < 0 else -1, max(high * 1.6, width))
+    if discrete:
+        turn = np.linspace(0, 2 * np.pi, 721)
+        ax.plot(np.cos(turn), np.sin(turn), color="black", linestyle="--", linewidth=1.0,
+                label="unit circle |z| = 1")
+        ax.axvline(0, color="#bbbbbb", linewidth=0.5, zorder=0)
+        reach = max(1.0, float(np.abs(everything).max()) if len(everything) else 1.0) * 1.1
+        ax.set_xlim(-reach, reach)
+        ax.set_ylim(-reach, reach)
+        ax.set_aspect("equal")
     else:
-        ax.set_xlim(low - pad, high + pad)
+        ax.axvline(0, color="black", linestyle="--", linewidth=1.0, label="imaginary axis")
+        low = float(min(everything.real.min(), 0)) if len(everything) else -1.0
+        high = float(max(everything.real.max(), 0)) if len(everything) else 1.0
+        pad = (high - low) * 0.08 or 1.0
+        if spread > 30:
+            ax.set_xlim(low * 1.6 if low < 0 else -1, max(high * 1.6, width))
+        else:
+            ax.set_xlim(low - pad, high + pad)
+    zeta = None if discrete else case.requirements.damping_ratio
+    if zeta is not None:
+        _sector_rays(ax, float(zeta))
     ax.grid(True, color="#dddddd", linewidth=0.5)
     var = getattr(case, "variable", "s")
     # the Laplace variable of a time in seconds: Re s in 1/s, Im s (a frequency) in rad/s
@@ -266,9 +266,30 @@ def root_cloud_picture(case, draws: np.ndarray, witness=None) -> Picture:
         _decade_ticks(ax.yaxis, ax.get_ylim(), width)
     ax.set_title(f"Roots of sampled members ({note})", fontsize=9.5)
     figure.legend(loc="outside lower center", ncol=3, fontsize=8)
-    alt = (f"Root cloud of {SAMPLED_MEMBERS} sampled members; largest real part "
-           f"{float(roots.real.max()) if len(roots) else float('nan'):.4g}")
+    if discrete:
+        largest = float(np.abs(roots).max()) if len(roots) else float("nan")
+        alt = (f"Root cloud of {len(draws)} sampled members in the z-plane with the unit circle; "
+               f"largest root magnitude |z| {largest:.4g}")
+    else:
+        alt = (f"Root cloud of {len(draws)} sampled members; largest real part "
+               f"{float(roots.real.max()) if len(roots) else float('nan'):.4g}"
+               + (f"; damping sector boundary for ζ = {float(zeta):g}" if zeta is not None else ""))
     return Picture("root_cloud", _png(figure), alt)
+
+
+def _sector_rays(ax, zeta: float) -> None:
+    """The two rays Re s = -zeta |s| from the origin across the panel, dotted; the axis
+    limits stay as they were (the rays are drawn as dense polylines, so they stay straight
+    in data terms on asinh axes too)."""
+    xlim, ylim = ax.get_xlim(), ax.get_ylim()
+    reach = 4 * max(abs(v) for v in (*xlim, *ylim))
+    radius = np.concatenate([[0.0], np.geomspace(reach * 1e-9, reach, 600)])
+    across = math.sqrt(max(1 - zeta * zeta, 0.0))
+    for sign, label in ((1, f"damping ratio ζ = {zeta:g} (sector boundary Re s = −ζ|s|)"), (-1, None)):
+        ax.plot(-zeta * radius, sign * across * radius, color="black", linestyle=":", linewidth=1.2,
+                label=label)
+    ax.set_xlim(xlim)
+    ax.set_ylim(ylim)
 
 
 def _decade_ticks(axis, limits: tuple[float, float], width: float) -> None:
@@ -338,10 +359,11 @@ def dependency_picture(case) -> Picture:
                                     linewidth=1.1, color="#222222", shrinkA=0, shrinkB=0)
             ax.add_patch(arrow)
     box = {"boxstyle": "round,pad=0.3", "facecolor": "white", "edgecolor": "black", "linewidth": 0.9}
+    held = "w" if family.discrete else family.variable  # the variable of the coefficients held
     for name, y in left.items():
         ax.text(x_left, y, name, ha="right", va="center", fontsize=9.5, bbox=box)
     for power, y in right.items():
-        ax.text(x_right, y, f"a{power}  (s^{power})", ha="left", va="center", fontsize=9.5,
+        ax.text(x_right, y, f"a{power}  ({held}^{power})", ha="left", va="center", fontsize=9.5,
                 bbox={**box, "boxstyle": "square,pad=0.3", "facecolor": "#eeeeee"})
     ax.text(x_left, tall - 0.2 + 0.6, "parameters", ha="right", va="bottom", fontsize=9.5,
             fontweight="bold")

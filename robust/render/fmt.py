@@ -10,7 +10,7 @@ from ..exact.numbers import approx_text, format_fraction, to_float
 from ..exact.routh import Entry, format_entry
 from .blocks import Cell
 
-__all__ = ["bound_text", "entry_cell", "exact_cell", "short"]
+__all__ = ["bound_text", "criterion_ends", "criterion_text", "entry_cell", "exact_cell", "short"]
 
 #: Exact texts longer than this are shown as a float, the exact text kept beside it.
 LONG = 14
@@ -34,6 +34,48 @@ def bound_text(x: Fraction, upward: bool, digits: int = 7) -> str:
         value = Decimal(x.numerator) / Decimal(x.denominator)
     text = f"{value:g}" if abs(value) < Decimal(10) ** digits else f"{value:.{digits - 1}e}"
     return text
+
+
+def _measure_end(measure, x: Fraction, upward: bool, digits: int) -> str:
+    """The criterion's value at search variable x in its unit, rounded outwards: exact for
+    the rational units (ratio, radius); dB and degrees come as 40-digit mpmath numbers, moved
+    outwards by 1e-30 relative (far above their own error) before the rounding."""
+    value = measure.value_of(x)
+    if not isinstance(value, Fraction):
+        import mpmath
+
+        with mpmath.workdps(40):
+            nudged = value + (1 if upward else -1) * abs(value) * mpmath.mpf(10) ** -30
+            value = Fraction(mpmath.nstr(nudged, 36, min_fixed=-mpmath.inf, max_fixed=mpmath.inf))
+    text = bound_text(value, upward=upward, digits=digits)
+    if "." in text and "e" not in text:
+        text = text.rstrip("0").rstrip(".")
+    return text
+
+
+def criterion_ends(criterion, digits: int = 6) -> tuple[str | None, str | None]:
+    """A criterion's certified ends in its unit (guaranteed and witnessed; for the radius the
+    witnessed end is the lower one) with ``digits`` significant digits, rounded outwards;
+    None = an open end. They contain the JSON's ``lower`` and ``upper``."""
+    measure, bracket = criterion.measure, criterion.bracket
+    low_x, high_x = bracket.lower, bracket.upper
+    if measure.smaller_is_better:  # the radius: the witnessed end is the lower one
+        low_x, high_x = high_x, low_x
+    low = None if low_x is None else _measure_end(measure, low_x, False, digits)
+    high = None if high_x is None else _measure_end(measure, high_x, True, digits)
+    return low, high
+
+
+def criterion_text(criterion, digits: int = 6) -> str:
+    """A criterion's certified bracket for people: "[41.5071, 50.4789] deg", "at least 24.609 dB",
+    "at most 0.95", rounded outwards."""
+    low, high = criterion_ends(criterion, digits)
+    unit = f" {criterion.measure.unit}" if criterion.measure.unit else ""
+    if low is None:
+        return f"at most {high}{unit}"
+    if high is None:
+        return f"at least {low}{unit}"
+    return f"[{low}, {high}]{unit}"
 
 
 def witness_roots(witness) -> list[complex] | None:
