@@ -393,13 +393,17 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
               help="Relative bracket width asked for [default: 1e-9 interval families, 1e-6 others].")
 @_search_budget_options(1000, 48)
 @click.option("--no-decay", is_flag=True, help="Skip the decay-rate margin.")
+@click.option("--no-criteria", is_flag=True, help="Skip the gain, phase, damping and radius brackets.")
 @click.option("--certificate", type=click.Path(dir_okay=False, path_type=str), default=None,
               help="Also write the proof of the bracket's proven end (every tolerance scaled by it) "
                    "to this new JSON file.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: float, max_boxes: int,
-                   max_tests: int, no_decay: bool, certificate: str | None, as_json: bool) -> None:
-    """Robust margin rho* (how far every tolerance can grow) and the decay-rate margin.
+                   max_tests: int, no_decay: bool, no_criteria: bool, certificate: str | None,
+                   as_json: bool) -> None:
+    """Robust margin rho* (how far every tolerance can grow), the decay-rate margin, and the
+    worst-case damping ratio; for loops the gain and phase margins, for discrete time the
+    spectral radius. Each is a certified bracket with the point that limits it.
 
     Exit codes: 0 computed (and requirements met), 1 a requirement of the case is not
     proven met, 2 bad input or an unusable --certificate path.
@@ -423,7 +427,8 @@ def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: floa
     shown = _progress("margin", None, "decision")
     with listening(shown.listen):
         result = margin(loaded, cap=cap_value, rel_tol=rel_tol, max_seconds=max_seconds,
-                        max_boxes=max_boxes, max_tests=max_tests, with_decay=not no_decay)
+                        max_boxes=max_boxes, max_tests=max_tests, with_decay=not no_decay,
+                        with_criteria=not no_criteria)
     upper = "no failure up to the cap" if result.margin.upper is None \
         else approx_text(result.margin.upper, 6)
     shown.finish(f"rho* in [{approx_text(result.margin.lower, 6)}, {upper}]")

@@ -229,7 +229,9 @@ _BAD = [
     ('variable = "s"\n', '[polynomial]\nexpression = "s + R"', "radius = 0.9", "decay_rate"),
     ('variable = "z"\n', '[polynomial]\nexpression = "z - R/2"', "decay_rate = 1", "radius"),
     ("", '[polynomial]\nexpression = "s + R"', "gain_margin_db = 6", "[polynomial.loop]"),
-    ("", '[polynomial]\nexpression = "s + R"', "damping_ratio = 1.2", "between 0 and 1"),
+    ("", '[polynomial]\nexpression = "s + R"', "damping_ratio = 1.2", "(0, 0.99]"),
+    ('variable = "z"\n', '[polynomial]\nexpression = "z - R/2"', "damping_ratio = 0.5", "radius"),
+    ("", '[polynomial.loop]\nplant = "R/(s*(s + 1))"', "gain_margin_db = 1e30", "(0, 120]"),
     ('sample_time = "1m"\n', '[polynomial]\nexpression = "s + R"', "", 'variable = "z"'),
 ]
 
@@ -252,3 +254,32 @@ def test_requirements_that_do_not_fit_the_case_are_refused_with_what_to_write(tm
     assert result.exit_code == 2
     line = result.stderr.strip()
     assert line.count("\n") == 0 and str(path) in line and hint in line
+
+
+# -- discrete time at the circle's edge, and criteria of a family that is not stable ----------------
+
+
+def test_a_root_at_z_minus_one_is_a_witness_on_the_circle():
+    """(z + a)(z - 1/2) with a in [1/2, 1] has its root -a on the unit circle at a = 1 (by
+    hand): unstable, with the witness's counts saying "on the circle"; the same with a fixed
+    at 1 at the nominal point."""
+    reaching = _case("[parameters.a]\nrange = [0.5, 1]\n", '[polynomial]\nexpression = "(z + a)*(z - 0.5)"',
+                     extra='variable = "z"\n')
+    from robust.analysis.verdict import check
+
+    result = check(reaching)
+    assert result.verdict == "unstable"
+    assert result.witness.parameters["a"] == 1 and result.witness.roots.on_circle == 1
+    fixed = _case("[parameters.a]\nnominal = 1\ntolerance = 0\n", '[polynomial]\nexpression = "(z + a)*(z - 0.5)"',
+                  extra='variable = "z"\n')
+    assert check(fixed).verdict == "unstable"
+
+
+def test_criteria_of_an_unstable_discrete_family_claim_only_what_x_zero_shows():
+    """(z - a)(z + 1/5) with a in [1/2, 3/2] has the root 3/2 outside the circle (by hand): the
+    spectral radius is at least 1 and no upper end is claimed."""
+    case = _case("[parameters.a]\nrange = [0.5, 1.5]\n", '[polynomial]\nexpression = "(z - a)*(z + 0.2)"',
+                 extra='variable = "z"\n')
+    result = measure_criterion(case.family, RADIUS)
+    assert result.stable is False and (result.low, result.high) == (1.0, None)
+    assert result.as_dict()["upper"] is None

@@ -3,9 +3,12 @@
 * gain margin (upper and lower direction), for loops: the largest g such that the loop stays
   stable for every extra loop gain k in [1, g] (in [1/g, 1]) and every parameter point;
 * phase margin, for loops: the largest angle such that it stays stable for every extra phase
-  lag e^(-j theta), theta in [0, angle];
-* damping ratio: the largest zeta with every root of every member in the sector
-  Re(s) < -zeta |s| (for discrete time, of the bilinear equivalent w = (z - 1) / (z + 1));
+  lag e^(-j theta), theta in [0, angle]; a constant complex factor acts at negative
+  frequencies too, where it is a lead, so this is the phase shift the loop tolerates in
+  either direction (the classical margin 180 deg + arg L at crossover, unless the loop's
+  phase at some crossover lies above 0 deg);
+* damping ratio, in continuous time: the largest zeta with every root of every member in the
+  sector Re(s) < -zeta |s|;
 * spectral radius, for discrete time: the least r with every root of every member in |z| < r.
 
 Each becomes a family that is Hurwitz exactly when the criterion holds at one value of a
@@ -143,7 +146,7 @@ GAIN_BOTH = Measure("gain_margin_db", "gain margin (gain raised or lowered)", "d
 GAIN_DOWN = Measure("gain_margin_db_lower_direction", "gain margin (gain lowered)", "dB", _lower_gain,
                     Fraction(1), Fraction(10**6 - 1), True, _gain_value, _gain_x)
 # first try about 10 degrees (tan^2 5 deg = 0.00765), doubling up; cap about 179 degrees
-PHASE = Measure("phase_margin_deg", "phase margin", "deg", phase_family, Fraction(765, 10**5),
+PHASE = Measure("phase_margin_deg", "phase margin (lag or lead)", "deg", phase_family, Fraction(765, 10**5),
                 Fraction(13130), True, _phase_value, _phase_x)
 DAMPING = Measure("damping_ratio", "damping ratio", "", sector_family, Fraction(1, 16), Fraction(1), False,
                   damping_of, lambda zeta, side: damping_parameter(zeta, side))
@@ -163,14 +166,13 @@ MEASURE_OF_REQUIREMENT = {"gain_margin_db": GAIN_BOTH, "phase_margin_deg": PHASE
 
 
 def criteria_for(family: UncertainPolynomial) -> tuple[Measure, ...]:
-    """The criteria that apply to a family: gain and phase margins for loops, the damping
-    ratio always, the spectral radius for discrete time."""
+    """The criteria that apply to a family: gain and phase margins for loops; the damping
+    ratio in continuous time, the spectral radius in discrete time (the damping region of
+    z = e^(sT) is bounded by spirals, not by a polynomial region)."""
     out = []
     if family.loop:
         out += [GAIN_UP, GAIN_DOWN, PHASE]
-    out.append(DAMPING)
-    if family.discrete:
-        out.append(RADIUS)
+    out.append(RADIUS if family.discrete else DAMPING)
     return tuple(out)
 
 
@@ -206,6 +208,10 @@ class Criterion:
     #: The sample time of a discrete-time case (seconds), for the spectral radius's
     #: continuous-time reading; None when not given.
     sample_time: Fraction | None = None
+    #: Robust stability itself: True, False (a witness at x = 0) or None (undecided).
+    #: Without it the bracket says only "at most 0" (gain, phase, damping) or "at least 1"
+    #: (spectral radius), or nothing.
+    stable: bool | None = True
 
     def decay_equivalent(self) -> tuple[float, float | None] | None:
         """For the spectral radius with a sample time: the worst-case decay rate -ln(r)/T
@@ -221,21 +227,27 @@ class Criterion:
     def passed(self) -> bool | None:
         return None if self.outcome is None else self.outcome.passed
 
+    def x_ends(self) -> tuple[Fraction | None, Fraction | None]:
+        """The search values of the bracket's low and high ends in the engineer's unit (None:
+        open). Without robust stability only x = 0 is known: the criterion is at most 0 dB,
+        0 deg or damping 0 (at least radius 1) when a member is unstable, and nothing when
+        stability is undecided. For the radius the witnessed end is the low one."""
+        b = self.bracket
+        if self.stable is not True:
+            if self.stable is None:
+                return None, None
+            return (Fraction(0), None) if self.measure.smaller_is_better else (None, Fraction(0))
+        return (b.upper, b.lower) if self.measure.smaller_is_better else (b.lower, b.upper)
+
     @property
     def low(self) -> float | None:
-        """The guaranteed value (for the radius: the witnessed one, its lower end)."""
-        m, b = self.measure, self.bracket
-        return m.shown(b.upper, -1) if m.smaller_is_better else m.shown(b.lower, -1)
+        """The low end in the unit, rounded down (None: open)."""
+        return self.measure.shown(self.x_ends()[0], -1)
 
-    def text(self) -> str:
-        """The bracket for people: "[48.48, 48.77] deg", "at least 84.3 dB"."""
-        unit = f" {self.measure.unit}" if self.measure.unit else ""
-        low, high = self.low, self.high
-        if low is None and high is not None:
-            return f"at most {high:.6g}{unit}"
-        if high is None:
-            return f"at least {low:.6g}{unit}"
-        return f"[{low:.6g}, {high:.6g}]{unit}"
+    @property
+    def high(self) -> float | None:
+        """The high end in the unit, rounded up (None: open)."""
+        return self.measure.shown(self.x_ends()[1], +1)
 
     def limit_text(self) -> str:
         """What limits it, for people: the witness point and the extra gain or lag."""
@@ -247,13 +259,15 @@ class Criterion:
     @property
     def high(self) -> float | None:
         m, b = self.measure, self.bracket
+        if self.stable is not True:
+            return None if m.smaller_is_better or self.stable is None else 0.0
         return m.shown(b.lower, +1) if m.smaller_is_better else m.shown(b.upper, +1)
 
     def as_dict(self) -> dict[str, object]:
         """JSON: lower and upper in the unit, rounded outwards; limited_by; the search
         variable's exact bracket; the requirement's outcome."""
         b = self.bracket
-        return {"lower": self.low, "upper": self.high, "unit": self.measure.unit,
+        return {"lower": self.low, "upper": self.high, "unit": self.measure.unit, "robustly_stable": self.stable,
                 "limited_by": _limited_by(self.measure, b.witness, b.upper),
                 "search_lower_exact": format_fraction(b.lower),
                 "search_upper_exact": None if b.upper is None else format_fraction(b.upper),
@@ -341,9 +355,9 @@ def measure_criterion(family: UncertainPolynomial, measure: Measure, required: F
     outcome (through the one pass/fail rule, on x). ``stable``: robust stability when
     already decided (True), else it is decided first. A requirement the bracket leaves open
     is decided directly with ``requirement_boxes`` boxes, as in every command."""
-    # two undecided tests end the search: near the first value it cannot decide, the
+    # an undecided test ends the search: near the first value it cannot decide, the
     # families of these criteria (degree 2n, squared coefficients) rarely become decidable
-    work = Work(max_tests, time.perf_counter() + max_seconds, max_undecided=2)
+    work = Work(max_tests, time.perf_counter() + max_seconds, max_undecided=1)
     tol = Fraction(rel_tol)
     last: list = []
     test = _tester(family, measure, work, max_boxes, last)
@@ -356,10 +370,11 @@ def measure_criterion(family: UncertainPolynomial, measure: Measure, required: F
                     else "robust stability itself is undecided")
             bracket = Bracket(Fraction(0), Fraction(0) if verdict is Verdict.UNSTABLE else None,
                               witness=witness, note=note)
-            return _with_requirement(family, measure, bracket, required, requirement_boxes, work)
+            return _with_requirement(family, measure, bracket, required, requirement_boxes, work,
+                                     False if verdict is Verdict.UNSTABLE else None)
     elif not stable:
         bracket = Bracket(Fraction(0), Fraction(0), note="not robustly stable: the criterion is not met anywhere")
-        return _with_requirement(family, measure, bracket, required, requirement_boxes, work)
+        return _with_requirement(family, measure, bracket, required, requirement_boxes, work, False)
     bracket = bisect_margin(test, measure.end, measure.end_testable, tol, work,
                             start=measure.start, tighten=_tightener(family, measure, tol, last))
     if bracket.upper is None and not measure.end_testable:
@@ -368,9 +383,10 @@ def measure_criterion(family: UncertainPolynomial, measure: Measure, required: F
 
 
 def _with_requirement(family: UncertainPolynomial, measure: Measure, bracket: Bracket,
-                      required: Fraction | None, max_boxes: int, work: Work) -> Criterion:
+                      required: Fraction | None, max_boxes: int, work: Work, stable: bool | None = True
+                      ) -> Criterion:
     if required is None:
-        return Criterion(measure, bracket)
+        return Criterion(measure, bracket, stable=stable)
     strict, lenient = measure.x_of(required, +1), measure.x_of(required, -1)
     outcome = requirement_outcome(strict, None, bracket.lower, None)
     if outcome is Outcome.OPEN:
@@ -383,7 +399,7 @@ def _with_requirement(family: UncertainPolynomial, measure: Measure, bracket: Br
             bracket = replace(bracket, lower=strict)
         elif verdict is Verdict.UNSTABLE and (bracket.upper is None or bracket.upper > lenient):
             bracket = replace(bracket, upper=lenient, witness=witness)
-    return Criterion(measure, bracket, required, outcome)
+    return Criterion(measure, bracket, required, outcome, stable=stable)
 
 
 def for_requirements(requirements: object) -> Sequence[tuple[Measure, Fraction]]:

@@ -166,7 +166,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
         bracket that leaves one open uses that decision instead of deciding it again.
     with_criteria
         Also bracket the gain and phase margins (loops), the damping ratio and the spectral
-        radius (discrete time): :mod:`.criteria`, each with half the boxes and as many
+        radius (discrete time): :mod:`.criteria`, each with a quarter of the boxes and as many
         decisions (the search stops at its first undecided one).
 
     Examples
@@ -205,7 +205,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
         sample_time = getattr(case_or_family, "sample_time", None)  # the radius's reading in 1/s
         return tuple(
             replace(measure_criterion(family, measure, asked.get(REQUIREMENT_OF[measure.name]),
-                                      max_boxes=max(max_boxes // 2, 1), max_tests=max_tests,
+                                      max_boxes=max(max_boxes // 4, 1), max_tests=max_tests,
                                       max_seconds=max(work.deadline - time.perf_counter(), 0.01),
                                       requirement_boxes=requirement_boxes, stable=stable),
                     sample_time=sample_time)

@@ -24,7 +24,7 @@ _WORDS = {"margin": "stable with every tolerance scaled by {v}",
           "decay_rate": "every root has Re(s) < -{v}",
           "radius": "every root inside |z| < {v}",
           "gain_margin_db": "stable for every extra loop gain within -{v} .. +{v} dB",
-          "phase_margin_deg": "stable for every extra phase lag up to {v} degrees",
+          "phase_margin_deg": "stable for every extra phase shift (lag or lead) up to {v} degrees",
           "damping_ratio": "every root with damping ratio above {v}"}
 
 

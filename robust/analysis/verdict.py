@@ -252,10 +252,10 @@ def make_witness(family: UncertainPolynomial, point: Sequence[Fraction], found_b
     if not box.contains(point):
         return None
     coeffs = family.coefficients_at(point)
-    if all(c == 0 for c in coeffs) or is_hurwitz(coeffs):
-        return None
-    if coeffs[0] == 0:
-        return None  # a degree drop, not a witness by itself
+    # in z the image loses its degree (the written one kept) only for a root at z = -radius
+    on_circle = bool(family.source) and coeffs[0] == 0 and family.written_at(point)[0] != 0
+    if not on_circle and (all(c == 0 for c in coeffs) or is_hurwitz(coeffs) or coeffs[0] == 0):
+        return None  # stable, or a degree drop (not a witness by itself)
     # the polynomial as the user wrote it (in z for discrete time), with counts in their terms
     return Witness(family.names, point, family.written_at(point), family.counts_at(point), found_by)
 
@@ -403,7 +403,8 @@ def decide(
                            budget.boxes, proven, edges, budget.elapsed(), kh, reason, box, depth,
                            safety_stop=budget.clock_fired, proof=proof)
 
-    if nominal_table is None or not nominal_table.is_hurwitz:
+    # in z, the image losing its degree at the nominal point is a root at z = -1: on the circle
+    if nominal_table is None or not nominal_table.is_hurwitz or (family.source and nominal_coeffs[0] == 0):
         w = make_witness(family, start_point, "nominal point", box)
         if w is not None:
             return result("unstable", "nominal", w, reason="the nominal design is not stable")

@@ -508,9 +508,9 @@ _RANGES = {
     "margin": ("a positive number (1 = the tolerances as written)", lambda v: v > 0),
     "decay_rate": ("a number >= 0 (1/s)", lambda v: v >= 0),
     "radius": ("a number in (0, 1]", lambda v: 0 < v <= 1),
-    "gain_margin_db": ("a positive number of decibels, e.g. 6", lambda v: v > 0),
+    "gain_margin_db": ("a number of decibels in (0, 120], e.g. 6", lambda v: 0 < v <= 120),
     "phase_margin_deg": ("an angle in degrees between 0 and 179, e.g. 45", lambda v: 0 < v <= 179),
-    "damping_ratio": ("a number between 0 and 1, e.g. 0.4", lambda v: 0 < v < 1),
+    "damping_ratio": ("a number in (0, 0.99], e.g. 0.4", lambda v: 0 < v <= Fraction(99, 100)),
 }
 
 
@@ -528,6 +528,10 @@ def _requirements(reader: _Reader, table: object, discrete: bool = False, loop: 
             raise reader.error("requirements", key, "out of range", expected, table[key])
         if key == "decay_rate" and discrete:
             raise reader.error("requirements", key, "a decay rate is for continuous time (variable s)",
+                               "radius = r: every root inside |z| < r (e.g. 0.9)")
+        if key == "damping_ratio" and discrete:
+            raise reader.error("requirements", key, "a damping ratio is for continuous time (variable s): "
+                               "the damping region of z = e^(sT) is not a polynomial region",
                                "radius = r: every root inside |z| < r (e.g. 0.9)")
         if key == "radius" and not discrete:
             raise reader.error("requirements", key, "a radius is for discrete time (variable = \"z\")",

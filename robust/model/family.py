@@ -495,7 +495,8 @@ def sector_family(family: UncertainPolynomial, t: Fraction) -> UncertainPolynomi
     """The family that is Hurwitz exactly when every root has damping ratio above
     damping_of(t) (:func:`robust.exact.regions.sector_weights`), degree 2n. For a
     discrete-time family the roots are those of the Hurwitz form, the bilinear (Tustin)
-    equivalent w = (z - 1) / (z + 1) of the z roots."""
+    equivalent w = (z - 1) / (z + 1) of the z roots (not offered as a criterion there: see
+    robust.analysis.criteria)."""
     from ..exact.regions import sector_weights
 
     k = len(family.names)

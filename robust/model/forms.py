@@ -169,8 +169,9 @@ def discrete_table(poly_or_coeffs: object, radius: Fraction = Fraction(1)) -> Di
 
     Examples
     --------
-    >>> discrete_table("(z - 0.5)*(z + 2)").counts.as_dict()
-    {'inside': 1, 'on_circle': 0, 'outside': 1}
+    >>> counts = discrete_table("(z - 0.5)*(z + 2)").counts
+    >>> counts.inside, counts.on_circle, counts.outside
+    (1, 0, 1)
     """
     values = as_coefficients(poly_or_coeffs, "z")
     n = len(values) - 1

@@ -6,7 +6,7 @@ from fractions import Fraction
 
 from ..exact.numbers import approx_text, format_fraction, json_float, percent_text
 from ..exact.routh import RouthTable, format_entry
-from .fmt import witness_roots
+from .fmt import criterion_text, witness_roots
 
 __all__ = ["render_table", "roots_sentence"]
 
@@ -278,7 +278,7 @@ def render_margin(case, result) -> str:
         if d.outcome is not None:
             lines.append(f"Requirement decay_rate >= {approx_text(d.requirement)}: {d.outcome.word}")
     for c in result.criteria:
-        lines.append(f"{c.measure.words.capitalize()}, worst case over the box: {c.text()}")
+        lines.append(f"{c.measure.words.capitalize()}, worst case over the box: {criterion_text(c)}")
         if c.limit_text():
             lines.append(f"  limited by: {c.limit_text()}")
         decay = c.decay_equivalent()
