@@ -99,10 +99,14 @@ class Measure:
 
 
 def _gain_value(x: Fraction):
+    """20 log10(1 + x) dB: exact for a power of ten (the cap, 10^6, is 120 dB)."""
     import mpmath
 
+    g = 1 + x
+    exponent = len(str(g.numerator)) - 1
+    if g.denominator == 1 and g.numerator == 10**exponent:
+        return Fraction(20 * exponent)
     with mpmath.workdps(40):
-        g = 1 + x
         return 20 * mpmath.log10(mpmath.mpf(g.numerator) / g.denominator)
 
 
