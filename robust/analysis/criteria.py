@@ -84,6 +84,9 @@ class Measure:
     #: (value, side) -> x: the exact x of a value, or a rational on ``side`` of it
     x_of: Callable[[Fraction, int], Fraction]
     smaller_is_better: bool = False
+    #: What holds whatever the family: 0 dB and 0 deg of margin (x = 0), a damping ratio of at
+    #: least -1, a spectral radius of at least 0. Shown when robust stability is not proven.
+    floor: float = 0.0
 
     def shown(self, x: Fraction | None, side: int) -> float | None:
         """The value at x as a float rounded outwards (``side`` +1 up, -1 down)."""
@@ -153,7 +156,7 @@ GAIN_DOWN = Measure("gain_margin_db_lower_direction", "gain margin (gain lowered
 PHASE = Measure("phase_margin_deg", "phase margin (lag or lead)", "deg", phase_family, Fraction(765, 10**5),
                 Fraction(13130), True, _phase_value, _phase_x)
 DAMPING = Measure("damping_ratio", "damping ratio", "", sector_family, Fraction(1, 16), Fraction(1), False,
-                  damping_of, lambda zeta, side: damping_parameter(zeta, side))
+                  damping_of, lambda zeta, side: damping_parameter(zeta, side), floor=-1.0)
 RADIUS = Measure("spectral_radius", "spectral radius", "", lambda f, x: radius_family(f, 1 - x),
                  Fraction(1, 20), Fraction(1), False, lambda x: 1 - x, lambda r, side: 1 - r,
                  smaller_is_better=True)
@@ -233,24 +236,31 @@ class Criterion:
 
     def x_ends(self) -> tuple[Fraction | None, Fraction | None]:
         """The search values of the bracket's low and high ends in the engineer's unit (None:
-        open). Without robust stability only x = 0 is known: the criterion is at most 0 dB,
-        0 deg or damping 0 (at least radius 1) when a member is unstable, and nothing when
-        stability is undecided. For the radius the witnessed end is the low one."""
+        open), robust stability proven. For the radius the witnessed end is the low one."""
         b = self.bracket
-        if self.stable is not True:
-            if self.stable is None:
-                return None, None
-            return (Fraction(0), None) if self.measure.smaller_is_better else (None, Fraction(0))
         return (b.upper, b.lower) if self.measure.smaller_is_better else (b.lower, b.upper)
+
+    def unproven_ends(self) -> tuple[float, float | None]:
+        """The ends when robust stability is not proven: only x = 0 is known. A member fails
+        there (stable False): at most 0 dB, 0 deg or damping 0, at least radius 1. Undecided:
+        nothing beyond what holds for every family (the measure's floor)."""
+        m = self.measure
+        if m.smaller_is_better:
+            return (1.0 if self.stable is False else m.floor), None
+        return m.floor, (0.0 if self.stable is False else None)
 
     @property
     def low(self) -> float | None:
-        """The low end in the unit, rounded down (None: open)."""
+        """The low end in the unit, rounded down."""
+        if self.stable is not True:
+            return self.unproven_ends()[0]
         return self.measure.shown(self.x_ends()[0], -1)
 
     @property
     def high(self) -> float | None:
         """The high end in the unit, rounded up (None: open)."""
+        if self.stable is not True:
+            return self.unproven_ends()[1]
         return self.measure.shown(self.x_ends()[1], +1)
 
     def limit_text(self) -> str:

@@ -297,10 +297,8 @@ def _criterion_row(criterion: Criterion, data: dict[str, Any],
     key = "margin." + ".".join(path)
     low, high = criterion_ends(criterion)
     unit = f" {criterion.measure.unit}" if criterion.measure.unit else ""
-    if low is None and high is None:
-        parts: tuple = ("not known (robust stability undecided)",)
-    elif low is None:
-        parts = ("at most ", Num(high or "-", node["upper"], key + ".upper"), unit)
+    if low is None:
+        parts: tuple = ("at most ", Num(high or "-", node["upper"], key + ".upper"), unit)
     elif high is None:
         parts = ("at least ", Num(low, node["lower"], key + ".lower"), unit)
     else:

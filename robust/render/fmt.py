@@ -58,6 +58,8 @@ def criterion_ends(criterion, digits: int = 6) -> tuple[str | None, str | None]:
     witnessed end is the lower one) with ``digits`` significant digits, rounded outwards;
     None = an open end. They contain the JSON's ``lower`` and ``upper``."""
     measure = criterion.measure
+    if criterion.stable is not True:  # only what x = 0 shows
+        return tuple(None if v is None else f"{v:g}" for v in criterion.unproven_ends())  # type: ignore[return-value]
     low_x, high_x = criterion.x_ends()
     low = None if low_x is None else _measure_end(measure, low_x, False, digits)
     high = None if high_x is None else _measure_end(measure, high_x, True, digits)
@@ -69,8 +71,6 @@ def criterion_text(criterion, digits: int = 6) -> str:
     "at most 0.95", rounded outwards."""
     low, high = criterion_ends(criterion, digits)
     unit = f" {criterion.measure.unit}" if criterion.measure.unit else ""
-    if low is None and high is None:
-        return "not known: robust stability itself is undecided"
     if low is None:
         return f"at most {high}{unit}"
     if high is None:
