@@ -283,3 +283,24 @@ def test_criteria_of_an_unstable_discrete_family_claim_only_what_x_zero_shows():
     result = measure_criterion(case.family, RADIUS)
     assert result.stable is False and (result.low, result.high) == (1.0, None)
     assert result.as_dict()["upper"] is None
+
+
+def test_margin_command_reports_the_criteria_and_skips_them_on_request(tmp_path):
+    """margin --json carries gain_margin_db (with lower_direction), phase_margin_deg and
+    damping_ratio for a loop, and none of them with --no-criteria; the gain margin holds the
+    Routh closed form a b (a + b) / K = 20/3 (above)."""
+    import json
+
+    from click.testing import CliRunner
+
+    from robust.cli import main
+
+    path = tmp_path / "loop.toml"
+    path.write_text(f'title = "t"\n{THIRD_ORDER}[polynomial.loop]\nplant = "K/(s*(s + a)*(s + b))"\n')
+    data = json.loads(CliRunner().invoke(main, ["margin", str(path), "--json", "--no-decay"]).stdout)
+    gain = data["gain_margin_db"]
+    assert gain["lower"] <= _db(F(20, 3)) <= gain["upper"]
+    assert gain["lower_direction"]["upper"] is None and {"phase_margin_deg", "damping_ratio"} <= set(data)
+    assert gain["limited_by"]["K"] == "3"
+    skipped = json.loads(CliRunner().invoke(main, ["margin", str(path), "--json", "--no-criteria"]).stdout)
+    assert not {"gain_margin_db", "phase_margin_deg", "damping_ratio"} & set(skipped)
