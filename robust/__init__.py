@@ -7,11 +7,12 @@ Architecture: layers, one direction of flow (a layer imports only the layers abo
                 gmpy2), multivariate polynomials, the Routh array, Hurwitz determinants,
                 interval polynomials and Kharitonov's theorem
     model/      what the user wrote: expr (safe parser), forms (text -> coefficients), case
-                (TOML), family (the uncertain polynomial over a box, physical limits), graph
+                (TOML), build (the same case from Python values), display (a notebook's HTML
+                hook), family (the uncertain polynomial over a box, physical limits), graph
     analysis/   what we conclude: outcomes (the enums, the one validity rule and the one
                 pass/fail rule), edges, search, verdict (the ladder), margin, rank,
                 montecarlo, signoff (every analysis of a report)
-    render/     text, report blocks, html, markdown, figures, writer: no mathematics
+    render/     text, report blocks, html, markdown, notebook, figures, writer: no mathematics
     cli         click only: options in, API call, render, exit code
 
 Results are frozen dataclasses; exact numbers stay ``fractions.Fraction`` until rendered.
@@ -40,6 +41,7 @@ _EXPORTS = {
     "estimate_yield": "robust.analysis.montecarlo",
     "is_hurwitz": "robust.exact.routh",
     "load_case": "robust.model.case",
+    "make_case": "robust.model.build",
     "margin": "robust.analysis.margin",
     "rank": "robust.analysis.rank",
     "routh_table": "robust.model.forms",
@@ -61,6 +63,7 @@ if TYPE_CHECKING:
     from .exact.routh import RootCounts as RootCounts
     from .exact.routh import RouthTable as RouthTable
     from .exact.routh import is_hurwitz as is_hurwitz
+    from .model.build import make_case as make_case
     from .model.case import Case as Case
     from .model.case import load_case as load_case
     from .model.forms import routh_table as routh_table

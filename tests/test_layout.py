@@ -58,6 +58,19 @@ def test_every_layer_imports_only_the_layers_before_it():
     assert bad == []
 
 
+def test_only_the_display_hook_reaches_the_renderers_by_name():
+    """Below render, only model/display.py names a render module (a notebook's _repr_html_,
+    called at display time); no other module works around the layers by a module's name."""
+    users = []
+    for path in PACKAGE.rglob("*.py"):
+        own = _layer(".".join(path.relative_to(PACKAGE.parent).with_suffix("").parts))
+        if own in ("render", "cli") or path == PACKAGE / "__init__.py":
+            continue
+        if "robust.render" in path.read_text() and "import_module" in path.read_text():
+            users.append(str(path.relative_to(PACKAGE)))
+    assert users == ["model/display.py"]
+
+
 def test_only_the_numbers_module_imports_the_big_number_backend():
     """gmpy2 (or flint) is imported in robust/exact/numbers.py alone."""
     users = []

@@ -34,6 +34,7 @@ from fractions import Fraction
 from ..exact.numbers import json_float, short_between
 from ..exact.routh import routh_table
 from ..model.case import REQUIREMENTS
+from ..model.display import HtmlDisplay
 from ..model.family import UncertainPolynomial
 from .bracket import Bracket, Work, bisect_margin, float_down, float_up, just_below, scaled_tester
 from .criteria import REQUIREMENT_OF, Criterion, criteria_for, measure_criterion
@@ -52,7 +53,7 @@ DEFAULT_MARGIN_TESTS = 48
 
 
 @dataclass(frozen=True, slots=True)
-class MarginResult:
+class MarginResult(HtmlDisplay):
     """Result of :func:`margin`: the bracket on rho*, what ends it, the requirement."""
 
     margin: Bracket

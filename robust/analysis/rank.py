@@ -24,6 +24,7 @@ from dataclasses import dataclass, replace
 from fractions import Fraction
 
 from ..exact.numbers import json_float, short_between
+from ..model.display import HtmlDisplay
 from ..model.family import UncertainPolynomial
 from ..model.graph import build_graph
 from .bracket import Bracket, Work, bisect_margin, float_down, just_below, scaled_tester
@@ -74,7 +75,7 @@ class ParameterRank:
 
 
 @dataclass(frozen=True, slots=True)
-class RankResult:
+class RankResult(HtmlDisplay):
     """Parameters, most critical first."""
 
     parameters: tuple[ParameterRank, ...]

@@ -34,6 +34,7 @@ from ..exact.interval import IntervalPolynomial, KharitonovResult, KharitonovVer
 from ..exact.numbers import format_fraction, json_float, to_float
 from ..exact.polynomials import Bound, as_intervals
 from ..exact.routh import RootCounts, is_hurwitz, routh_table
+from ..model.display import HtmlDisplay
 from ..model.family import Box, UncertainPolynomial
 from .edges import box_edges, check_segment
 from .outcomes import Verdict
@@ -142,7 +143,7 @@ class Proof:
 
 
 @dataclass(frozen=True, slots=True)
-class CheckResult:
+class CheckResult(HtmlDisplay):
     """The answer of :func:`check`.
 
     Attributes

@@ -20,11 +20,12 @@ from pathlib import Path
 from ..errors import CaseError, FormulaError, InputError, did_you_mean
 from ..exact import sparse
 from ..exact.numbers import approx_text, parse_number, to_fraction
+from .display import HtmlDisplay
 from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, new_work, parse_formula
 from .family import Box, UncertainPolynomial, build_family, discrete_family
 from .forms import closed_loop, coefficients_polynomial, expression_polynomial, loop_parts
 
-__all__ = ["Case", "Parameter", "Requirements", "load_case", "parse_case"]
+__all__ = ["Case", "Parameter", "Requirements", "case_from_data", "load_case", "parse_case"]
 
 _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
 _MAX_PARAMETERS = 64
@@ -80,7 +81,7 @@ REQUIREMENTS = ("margin", "decay_rate", "radius", "gain_margin_db", "phase_margi
 
 
 @dataclass(frozen=True, slots=True)
-class Case:
+class Case(HtmlDisplay):
     """A loaded case: what the user wrote, and the family it defines."""
 
     path: str
@@ -334,7 +335,6 @@ def _top_level_hint(key: str, value: object, allowed: set[str]) -> str:
 
 def parse_case(text: str, path: str = "<case>") -> Case:
     """Read a case from TOML text. See :func:`load_case`."""
-    reader = _Reader(path, text)
     if not text.strip():
         raise CaseError(path, "", "the file is empty", "a TOML case file (title, [parameters], [polynomial])")
     try:
@@ -347,6 +347,17 @@ def parse_case(text: str, path: str = "<case>") -> Case:
         if match:
             problem += f" at column {match.group(2)}"
         raise CaseError(path, "", f"TOML syntax error: {problem}", "valid TOML", None, line) from None
+    return case_from_data(data, path, hashlib.sha256(text.encode()).hexdigest(), text)
+
+
+def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
+    """Build and check a case from the data a TOML reader gives (tables as dicts).
+
+    Every check and error of the case file applies; ``text``, when given, is the file's text,
+    for the line numbers of errors. :func:`robust.model.build.make_case` calls this with the
+    data of Python arguments.
+    """
+    reader = _Reader(path, text)
     allowed = {"title", "summary", "variable", "sample_time", "parameters", "polynomial", "requirements"}
     for key in data:
         if key not in allowed:
@@ -470,8 +481,7 @@ def parse_case(text: str, path: str = "<case>") -> Case:
         family = discrete_family(family)
     requirements = _requirements(reader, data.get("requirements", {}), variable == "z", bool(family.loop))
     return Case(path, title.strip(), summary.strip(), variable, parameters, form,
-                tuple(formulas), family, requirements,
-                hashlib.sha256(text.encode()).hexdigest(), tuple(reader.notes), sample_time)
+                tuple(formulas), family, requirements, sha256, tuple(reader.notes), sample_time)
 
 
 def _with_loop(family: UncertainPolynomial, parts: tuple[dict, dict], slots: int) -> UncertainPolynomial:

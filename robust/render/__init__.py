@@ -4,6 +4,7 @@ Architecture (imports flow downwards only):
 
     writer        the report directory: refuses foreign directories, writes the files
     html, markdown   renderers of the block tree (markup and escaping live only here)
+    notebook      cases and results as HTML fragments for a notebook (blocks of content, via html)
     content       what the report says, in order, as neutral blocks (blocks.py)
     certificate   the verdict's evidence: Routh arrays, witness, undecided remainder
     figures       the pictures (matplotlib, Agg canvas, imported lazily)

@@ -8,6 +8,18 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+
+class _Shown:
+    """Rich display in a notebook (Jupyter): a block shows itself as an HTML fragment,
+    rendered by :func:`robust.render.html.render_fragment` like the report."""
+
+    __slots__ = ()
+
+    def _repr_html_(self) -> str:
+        from .html import render_fragment  # html imports this module
+
+        return render_fragment(self if isinstance(self, Document) else [self])
+
 __all__ = ["Badge", "Block", "Cell", "Code", "Document", "Figure", "Inline", "ItemList", "Num",
            "Paragraph", "Preformatted", "Section", "Table"]
 
@@ -43,7 +55,7 @@ Inline = str | Num | Code | Badge
 
 
 @dataclass(frozen=True, slots=True)
-class Paragraph:
+class Paragraph(_Shown):
     """Running text; ``style`` is "", "lead", "note" or "outcome"."""
 
     parts: tuple[Inline, ...]
@@ -61,7 +73,7 @@ class Cell:
 
 
 @dataclass(frozen=True, slots=True)
-class Table:
+class Table(_Shown):
     """Header and rows of cells; ``style`` "routh" marks a Routh array."""
 
     header: tuple[str, ...]
@@ -71,21 +83,21 @@ class Table:
 
 
 @dataclass(frozen=True, slots=True)
-class Preformatted:
+class Preformatted(_Shown):
     """Fixed-width text kept as written (formulas)."""
 
     text: str
 
 
 @dataclass(frozen=True, slots=True)
-class ItemList:
+class ItemList(_Shown):
     """A bulleted list."""
 
     items: tuple[tuple[Inline, ...], ...]
 
 
 @dataclass(frozen=True, slots=True)
-class Figure:
+class Figure(_Shown):
     """A picture by its file stem, with a caption and a text alternative."""
 
     name: str
@@ -94,7 +106,7 @@ class Figure:
 
 
 @dataclass(frozen=True, slots=True)
-class Section:
+class Section(_Shown):
     """A titled part; ``group`` lays its sub-sections side by side on screen; ``new_page``
     starts it on a fresh printed page."""
 
@@ -109,7 +121,7 @@ Block = Paragraph | Table | Preformatted | ItemList | Figure | Section
 
 
 @dataclass(frozen=True, slots=True)
-class Document:
+class Document(_Shown):
     """The whole report."""
 
     title: str

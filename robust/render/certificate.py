@@ -8,6 +8,7 @@ from ..analysis.verdict import CheckResult, Witness
 from ..exact.interval import KharitonovVertex
 from ..exact.numbers import approx_text, percent_text
 from ..exact.routh import RouthTable
+from ..model.family import Box
 from .blocks import Cell, Code, ItemList, Paragraph, Section, Table
 from .fmt import entry_cell, exact_cell, witness_roots
 
@@ -119,14 +120,19 @@ def certificate_section(result: CheckResult, degree: int, proof: dict | None = N
 
 def witness_section(case, witness: Witness, title: str = "Witness: a parameter set that is not stable"
                     ) -> Section:
-    """The counterexample, exact and as floats, with its root counts and root values."""
+    """The counterexample, exact and as floats, with its root counts and root values; ``case``
+    gives each parameter's range and unit (a :class:`Box` gives the range alone)."""
     rows = []
     for name, value in witness.parameters.items():
-        p = case.parameter(name)
+        if isinstance(case, Box):
+            (low, high), unit = case.intervals[case.names.index(name)], ""
+        else:
+            p = case.parameter(name)
+            low, high, unit = p.low, p.high, p.unit
         rows.append((Cell((name,), mono=True), exact_cell(value),
                      Cell((approx_text(value, 8),), numeric=True),
-                     Cell((f"{approx_text(p.low)} … {approx_text(p.high)}",), numeric=True),
-                     Cell((p.unit,))))
+                     Cell((f"{approx_text(low)} … {approx_text(high)}",), numeric=True),
+                     Cell((unit,))))
     table = Table(("parameter", "exact value", "value", "range", "unit"), tuple(rows))
     values = witness_roots(witness)
     shown = ["not shown: the coefficients lie beyond the float range"] if values is None else [

@@ -14,8 +14,12 @@ from typing import Any
 
 from ..analysis.certificate import digest
 from ..analysis.criteria import REQUIREMENT_OF, Criterion
+from ..analysis.margin import MarginResult
 from ..analysis.outcomes import Outcome, Verdict
+from ..analysis.rank import RankResult
+from ..analysis.requirements import RequirementCheck
 from ..analysis.signoff import Analysis
+from ..analysis.verdict import CheckResult
 from ..exact.numbers import approx_text
 from ..model.graph import build_graph
 from .blocks import (
@@ -35,7 +39,8 @@ from .certificate import certificate_section, undecided_blocks, witness_section
 from .fmt import bound_text, criterion_ends
 from .text import margin_reading
 
-__all__ = ["CAUTIONS", "JOB_LINE", "build_document", "outcome", "rerun_command"]
+__all__ = ["CAUTIONS", "JOB_LINE", "build_document", "margins_section", "outcome", "parameters_section",
+           "ranking_section", "rerun_command", "verdict_blocks"]
 
 JOB_LINE = ("robust proves, in exact arithmetic, that a feedback loop's characteristic polynomial is "
             "stable for every combination of parameter values inside their tolerances, or refutes it "
@@ -116,9 +121,10 @@ def _header(analysis: Analysis) -> Section:
     return Section("Stability sign-off report", tuple(blocks), anchor="top")
 
 
-def _parameters(analysis: Analysis) -> Section:
+def parameters_section(case) -> Section:
+    """The case's parameters: nominal, range, tolerance as written, unit, distribution, note."""
     rows = []
-    for p in analysis.case.parameters:
+    for p in case.parameters:
         rows.append((Cell((p.name,), mono=True), Cell((approx_text(p.nominal),), numeric=True),
                      Cell((f"{approx_text(p.low)} … {approx_text(p.high)}",), numeric=True),
                      Cell((p.tolerance,)), Cell((p.unit,)), Cell((p.distribution,)), Cell((p.note,))))
@@ -183,8 +189,8 @@ def _discrete_blocks(case) -> list:
     ]
 
 
-def _verdict(analysis: Analysis, folder: str = "DIR") -> Section:
-    case, result = analysis.case, analysis.check
+def verdict_blocks(result: CheckResult) -> list:
+    """The check's verdict, method, reason, nominal roots and the work it took (no evidence)."""
     blocks: list = [
         Paragraph((Badge(result.verdict.headline, result.verdict.outcome.value, "check.verdict",
                          result.verdict.value),),
@@ -201,6 +207,12 @@ def _verdict(analysis: Analysis, folder: str = "DIR") -> Section:
     if result.verdict == "undecided":
         blocks += undecided_blocks(result)
     blocks.append(Paragraph((f"Time: {result.seconds:.2f} s.",), "note"))
+    return blocks
+
+
+def _verdict(analysis: Analysis, folder: str = "DIR") -> Section:
+    case, result = analysis.case, analysis.check
+    blocks = verdict_blocks(result)
     proof = analysis.certificate
     sha = digest(proof) if proof is not None else ""
     command = f"robust verify {Path(folder) / 'certificate.json'} --case {case.path}" if proof else ""
@@ -218,10 +230,12 @@ def _bracket_parts(bracket, json_bracket: dict, key: str) -> tuple:
     return ("[", lower, ", ", upper, "]")
 
 
-def _margins(analysis: Analysis) -> Section:
-    m = analysis.margin
+def margins_section(m: MarginResult, direct: Sequence[RequirementCheck] = (), safety_stop: bool = False,
+                    verdict: Verdict | None = None) -> Section:
+    """The margin search's brackets, what ends them and the requirements; ``direct`` holds the
+    requirements decided directly, ``verdict`` the check's (None: not known here)."""
     data: dict[str, Any] = m.as_dict()
-    requirements = {name: (required, result) for name, required, result in _requirement_results(analysis)}
+    requirements = {name: (required, result) for name, required, result in m.outcomes()}
     rows = []
 
     def row(label: str, bracket, json_bracket: dict, key: str, name: str) -> tuple:
@@ -263,13 +277,13 @@ def _margins(analysis: Analysis) -> Section:
     if m.margin.witness is not None:
         pts = ", ".join(f"{n} = {approx_text(v, 6)}" for n, v in m.margin.witness.parameters.items())
         items.append(("Witness just beyond the margin: " + pts + ".",))
-    for r in analysis.requirements:
+    for r in direct:
         items.append((f"Decided directly: {r.wording}: ", _badge(r.outcome))
                      + ((f" ({r.problem.detail})",) if r.problem is not None else ()))
-    if analysis.safety_stop:
+    if safety_stop:
         items.append(("The wall-clock safety limit cut a search short: a re-run on another machine "
                       "may give other brackets.",))
-    if not analysis.requirements and requirements and analysis.check.verdict != Verdict.STABLE:
+    if not direct and requirements and verdict is not None and verdict != Verdict.STABLE:
         items.append(("Requirements were not decided directly because the design is not robustly "
                       "stable; the outcome above comes from the brackets.",))
     blocks.append(ItemList(tuple(items)))
@@ -348,8 +362,8 @@ def _rank_bracket(bracket, limit) -> str:
     return text + ends.get(limit.kind.value, "") + ("" if limit.proven else " ?")
 
 
-def _ranking(analysis: Analysis) -> Section:
-    r = analysis.rank
+def ranking_section(r: RankResult, figure: bool = True) -> Section:
+    """The parameters, most critical first, with their margins (and the bar chart's place)."""
     failing = r.robustly_stable is False
     rows = []
     for i, p in enumerate(r.parameters, start=1):
@@ -377,10 +391,11 @@ def _ranking(analysis: Analysis) -> Section:
                    "(factor at 0) never make a root cross on their own: their margin ends where the model "
                    "stops standing for the hardware, and they are ranked after the parts that cross; "
                    "? marks an end not proven within the work budget.",), "note"),
-        Figure("ranking", "Per-parameter margins; the dashed line at 1 is the tolerance as given. "
-               "Bars longer than the axis are cut, with their value written beside them.",
-               "bar chart of per-parameter margins"),
     ]
+    if figure:
+        blocks.append(Figure("ranking", "Per-parameter margins; the dashed line at 1 is the tolerance "
+                             "as given. Bars longer than the axis are cut, with their value written "
+                             "beside them.", "bar chart of per-parameter margins"))
     return Section("Parameter ranking (most critical first)", tuple(blocks), anchor="ranking")
 
 
@@ -510,6 +525,9 @@ def build_document(analysis: Analysis, folder: str = "DIR") -> Document:
     the command that re-checks the certificate written there)."""
     return Document(
         f"robust report: {analysis.case.title}",
-        (_header(analysis), _parameters(analysis), _polynomial(analysis), _verdict(analysis, folder),
-         _margins(analysis), _ranking(analysis), _yield(analysis), _figures(analysis), _cautions(),
+        (_header(analysis), parameters_section(analysis.case), _polynomial(analysis),
+         _verdict(analysis, folder),
+         margins_section(analysis.margin, analysis.requirements, analysis.safety_stop,
+                         analysis.check.verdict),
+         ranking_section(analysis.rank), _yield(analysis), _figures(analysis), _cautions(),
          _record(analysis)))

@@ -23,7 +23,7 @@ from .blocks import (
     Table,
 )
 
-__all__ = ["render_html"]
+__all__ = ["render_fragment", "render_html"]
 
 _CSS = """
 :root { --ink: #1a1a1a; --mute: #555; --rule: #c8c8c8; --shade: #f1f1f1; }
@@ -134,6 +134,9 @@ def _table(table: Table) -> str:
 
 
 def _figure(figure: Figure, images: Mapping[str, bytes]) -> str:
+    if figure.name not in images:  # a fragment shown without its pictures: the caption says what
+        return (f'<figure id="figure-{escape(figure.name)}"><figcaption>{escape(figure.caption)} '
+                "(picture not drawn here)</figcaption></figure>")
     data = base64.b64encode(images[figure.name]).decode("ascii")
     return (f'<figure id="figure-{escape(figure.name)}"><img src="data:image/png;base64,{data}" '
             f'alt="{escape(figure.alt)}"><figcaption>{escape(figure.caption)}</figcaption></figure>')
@@ -183,3 +186,22 @@ def render_html(document: Document, images: Mapping[str, bytes], footer: str = "
             '<meta name="viewport" content="width=device-width, initial-scale=1">\n'
             f"<title>{escape(document.title)}</title>\n<style>{_CSS}</style>\n</head>\n<body>\n<main>\n"
             + "\n".join(body) + f"\n{foot}\n</main>\n</body>\n</html>\n")
+
+
+#: The little a fragment styles itself (scoped to it): the outcome words and the tables.
+_FRAGMENT_CSS = (".robust .badge { font-weight: bold; border: 2px solid; padding: 0 .4em; } "
+                 ".robust .badge.open { border-style: dashed; } "
+                 ".robust td.num { text-align: right; font-variant-numeric: tabular-nums; }")
+
+
+def render_fragment(blocks, images: Mapping[str, bytes] | None = None, level: int = 3) -> str:
+    """Blocks (or a whole :class:`Document`) as an HTML fragment for a page that has its own
+    head and style, such as a notebook's output cell: no scripts, every text escaped, section
+    titles from ``<h{level}>`` down. Pictures missing from ``images`` show their caption."""
+    images = images or {}
+    if isinstance(blocks, Document):
+        body = [f"<h{min(level, 6)}>{escape(blocks.title)}</h{min(level, 6)}>"]
+        body += [_section(section, images, level + 1) for section in blocks.sections]
+    else:
+        body = [_block(block, images, level) for block in blocks]
+    return f'<div class="robust">\n<style>{_FRAGMENT_CSS}</style>\n' + "\n".join(body) + "\n</div>"
