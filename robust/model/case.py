@@ -136,6 +136,8 @@ class _Reader:
         if start is None:
             if key is None:
                 return None
+            if section and self.line_of(f"{section}.{key}") is not None:  # [polynomial.loop] alone
+                return self.line_of(f"{section}.{key}")
             # a top-level key, a dotted key at top level, or a table of that name
             pattern = re.compile(r"\s*(?:" + re.escape(key) + r"\s*=|\[\s*" + re.escape(key) + r"\s*[\].])")
             for i, line in enumerate(self.lines):

@@ -162,7 +162,7 @@ def matrix_polynomial(reader: _Reader, form: str, table: object, variable: str, 
         else:
             quotient = mechanical_polynomial(matrices["M"], matrices.get("C"), matrices["K"], work)
     except InputError as error:
-        raise reader.error("polynomial", form, f"the determinant {title}: {error.problem}",
+        raise reader.error(section, None, f"the determinant {title}: {error.problem}",
                            "a smaller or sparser matrix, or simpler entries") from None
     formulas = [("polynomial", title)]
     for key in keys:
