@@ -137,8 +137,10 @@ def matrix_polynomial(reader: _Reader, form: str, table: object, variable: str, 
             raise reader.error(section, "K", "state feedback K needs the input matrix B",
                                "B (states x inputs) with K (inputs x states), or no K")
         m = shapes["B"][1] if "B" in table else 0
-        if "B" in table:
-            _require(reader, section, "B", shapes["B"], (n, m), f"it needs one row per state of A ({n})")
+        if "B" in table and shapes["B"][0] != n:
+            raise reader.error(section, "B", f"B is {shapes['B'][0]} x {m}: it needs one row per state of A "
+                               f"({n})", f'{n} rows of one entry per input (one input: a column such as '
+                               '[["b1"], ["b2"]])')
         if "C" in table:
             p = shapes["C"][0]
             _require(reader, section, "C", shapes["C"], (p, n), f"it needs one column per state of A ({n})")
