@@ -126,6 +126,16 @@ def _servo_lead():
     return p, nominal
 
 
+def _two_mass():
+    J1, J2, ks, cs, Kt = sp.symbols("J1 J2 ks cs Kt")
+    Kp, Kd = 20 * Kt, Q("0.5") * Kt
+    # the header's expanded det(M s^2 + C s + K), not the matrices the file holds
+    p = (J1 * J2 * S**4 + (J1 * cs + J2 * cs + J2 * Kd) * S**3 + ((J1 + J2) * ks + Kd * cs) * S**2
+         + (Kd * ks + Kp * cs) * S + Kp * ks)
+    nominal = {J1: Q("200e-6"), J2: Q("1e-3"), ks: 50, cs: Q("10e-3"), Kt: Q("100e-3")}
+    return p, nominal
+
+
 # expected verdict (from each file's header) and the rebuilt polynomial
 EXPECTED = {
     "digital_current_loop": ("stable", _digital_current_loop),
@@ -138,6 +148,7 @@ EXPECTED = {
     "maglev_lead": ("unstable", _maglev),
     "servo_pid": ("stable", _servo),
     "thermal_pi_affine": ("stable", _thermal),
+    "two_mass_mechanism": ("stable", _two_mass),
 }
 # Cases written as one expression or coefficient list with integer constants: the family's
 # coefficients are the written ones exactly (no constant factor cleared).
@@ -196,7 +207,7 @@ def test_nominal_coefficients_equal_an_independent_sympy_expansion(path):
     ("interval_measured", "independent"), ("interval_unstable", "independent"),
     ("maglev_lead", "multilinear"), ("servo_pid", "polynomial"), ("thermal_pi_affine", "affine"),
     ("isolation_mount", "multilinear"), ("servo_lead_criteria", "multilinear"),
-    ("digital_current_loop", "multilinear"),
+    ("digital_current_loop", "multilinear"), ("two_mass_mechanism", "multilinear"),
 ])
 def test_case_dependence_class_is_the_one_the_header_derives(stem, kind):
     """Each case's dependence class is the one its header comment derives."""

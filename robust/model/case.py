@@ -24,10 +24,13 @@ from .display import HtmlDisplay
 from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, new_work, parse_formula
 from .family import Box, UncertainPolynomial, build_family, discrete_family
 from .forms import closed_loop, coefficients_polynomial, expression_polynomial, loop_parts
+from .matrices import FORMS as MATRIX_FORMS
+from .matrices import matrix_polynomial
 
 __all__ = ["Case", "Parameter", "Requirements", "case_from_data", "load_case", "parse_case"]
 
 _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
+FORMS = ("expression", "coefficients", "loop", *MATRIX_FORMS)
 _MAX_PARAMETERS = 64
 #: Largest case file read, in bytes (checked before reading).
 MAX_FILE = 1_000_000
@@ -89,7 +92,7 @@ class Case(HtmlDisplay):
     summary: str
     variable: str
     parameters: tuple[Parameter, ...]
-    form: str  # "expression" | "coefficients" | "loop"
+    form: str  # "expression" | "coefficients" | "loop" | "state_space" | "mechanical"
     formulas: tuple[tuple[str, str], ...]  # (field, text) as written
     family: UncertainPolynomial
     requirements: Requirements
@@ -134,6 +137,8 @@ class _Reader:
         if start is None:
             if key is None:
                 return None
+            if section and self.line_of(f"{section}.{key}") is not None:  # [polynomial.loop] alone
+                return self.line_of(f"{section}.{key}")
             # a top-level key, a dotted key at top level, or a table of that name
             pattern = re.compile(r"\s*(?:" + re.escape(key) + r"\s*=|\[\s*" + re.escape(key) + r"\s*[\].])")
             for i, line in enumerate(self.lines):
@@ -307,8 +312,8 @@ def _limits(reader: _Reader, section: str, value: object, low: Fraction, high: F
 
 
 def _formula(reader: _Reader, section: str, key: str, text: object, names, variable,
-             polynomial: bool, work: sparse.Work, index: int | None = None):
-    field = key if index is None else f"{key}[{index}]"
+             polynomial: bool, work: sparse.Work, index: int | tuple[int, ...] | None = None):
+    field = key + "".join(f"[{i}]" for i in ((index,) if isinstance(index, int) else index or ()))
     if not isinstance(text, str | int | float) or isinstance(text, bool):
         raise reader.error(section, key, "a formula must be text", '"..."', text)
     try:
@@ -323,8 +328,8 @@ def _formula(reader: _Reader, section: str, key: str, text: object, names, varia
 
 def _top_level_hint(key: str, value: object, allowed: set[str]) -> str:
     """What an unknown top-level key was probably meant to be, as " (did you mean ...?)"."""
-    if key in ("expression", "coefficients", "loop"):  # a form written outside [polynomial]
-        return f" (did you mean [polynomial.{key}]?)" if key == "loop" \
+    if key in FORMS:  # a form written outside [polynomial]
+        return f" (did you mean [polynomial.{key}]?)" if key not in ("expression", "coefficients") \
             else f" (did you mean {key} = ... under [polynomial]?)"
     if key in ("margin", "decay_rate"):
         return f" (did you mean {key} = ... under [requirements]?)"
@@ -404,16 +409,17 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
     if not isinstance(poly, dict):
         raise reader.error("polynomial", None, "missing section [polynomial]",
                            "[polynomial] with expression, coefficients or [polynomial.loop]")
-    forms = [k for k in ("expression", "coefficients", "loop") if k in poly]
+    forms = [k for k in FORMS if k in poly]
     for key in poly:
-        if key not in ("expression", "coefficients", "loop"):
-            raise reader.error("polynomial", key, "unknown key" + did_you_mean(
-                key, ("expression", "coefficients", "loop")), "expression, coefficients or loop")
+        if key not in FORMS:
+            raise reader.error("polynomial", key, "unknown key" + did_you_mean(key, FORMS),
+                               "expression, coefficients, loop, state_space or mechanical")
     if len(forms) != 1:
         raise reader.error("polynomial", None,
-                           "give exactly one of expression, coefficients and loop" if forms
-                           else "no polynomial given",
-                           "expression = \"...\", coefficients = [...] or [polynomial.loop]")
+                           f"give exactly one of expression, coefficients, loop, state_space and "
+                           f"mechanical (got {' and '.join(forms)})" if forms else "no polynomial given",
+                           "expression = \"...\", coefficients = [...], [polynomial.loop], "
+                           "[polynomial.state_space] or [polynomial.mechanical]")
     form = forms[0]
     _check_total_length(reader, form, poly[form])
     formulas: list[tuple[str, str]] = []
@@ -438,6 +444,12 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
                       for i, item in enumerate(items)]
             formulas += [(f"coefficients[{i}] ({variable}^{n - i})", str(item)) for i, item in enumerate(items)]
             numerator, denominator = coefficients_polynomial(parsed, work)
+        elif form in MATRIX_FORMS:
+            section = f"polynomial.{form}"
+            (numerator, denominator), written = matrix_polynomial(
+                reader, form, poly[form], variable, work, lambda key, text, index: _formula(
+                    reader, section, key, text, names, variable, False, work, index))
+            formulas += written
         else:
             loop = poly["loop"]
             if not isinstance(loop, dict) or set(loop) - {"plant", "controller"} or "plant" not in loop:
@@ -506,8 +518,11 @@ def _with_loop(family: UncertainPolynomial, parts: tuple[dict, dict], slots: int
 
 def _check_total_length(reader: _Reader, form: str, value: object) -> None:
     """Refuse, before parsing any, formulas that are too long together to read quickly."""
-    items = value if isinstance(value, list) else list(value.values()) if isinstance(value, dict) else [value]
-    total = sum(len(item) for item in items if isinstance(item, str))
+    items, total = [value], 0
+    for _ in range(4):  # a list of formulas, a table of them, a table of matrices (rows of them)
+        total += sum(len(item) for item in items if isinstance(item, str))
+        items = [v for item in items if isinstance(item, list | dict)
+                 for v in (item.values() if isinstance(item, dict) else item)]
     if total > MAX_TOTAL_LENGTH:
         raise reader.error("polynomial", form, f"the formulas are too long together ({total:,} characters)",
                            f"at most {MAX_TOTAL_LENGTH:,} characters in all the formulas of a case")

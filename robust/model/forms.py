@@ -1,10 +1,11 @@
 """The forms a polynomial is written in, read into exact coefficients.
 
-A polynomial in ``s`` written as text, or its coefficients; and the three forms of a case
-file (one expression, a list of coefficient formulas, a loop of plant and controller), each
-combined into one characteristic polynomial as an exact sparse quotient (numerator,
-denominator) over the slots (variable, *parameter names) of :func:`robust.model.expr.
-parse_formula`. Every product is paid for from one work account (:mod:`robust.exact.sparse`).
+A polynomial in ``s`` written as text, or its coefficients; and the forms of a case file
+(one expression, a list of coefficient formulas, a loop of plant and controller, a state-space
+model, mass/damping/stiffness matrices), each combined into one characteristic polynomial as
+an exact sparse quotient (numerator, denominator) over the slots (variable, *parameter names)
+of :func:`robust.model.expr.parse_formula`. Every product is paid for from one work account
+(:mod:`robust.exact.sparse`).
 """
 
 from __future__ import annotations
@@ -18,14 +19,17 @@ from ..errors import InputError
 from ..exact import routh as _routh
 from ..exact import sparse
 from ..exact.numbers import format_fraction
+from ..exact.polydet import determinant
 from ..exact.regions import DiskCounts, SchurCohnTable, disk_counts, schur_cohn_table
 from ..exact.routh import RouthTable
 from .expr import ParsedFormula, polynomial_coefficients
 
 __all__ = ["DiscreteTable", "as_coefficients", "closed_loop", "coefficients_polynomial", "discrete_table",
-           "expression_polynomial", "loop_parts", "routh_table"]
+           "expression_polynomial", "loop_parts", "mechanical_polynomial", "over_common_denominator",
+           "routh_table", "state_space_polynomial"]
 
 Quotient = tuple[dict, dict]  # sparse numerator, sparse denominator
+Matrix = Sequence[Sequence[ParsedFormula]]  # rows of entries
 
 
 def _written(parsed: ParsedFormula) -> Quotient:
@@ -56,10 +60,10 @@ def expression_polynomial(parsed: ParsedFormula) -> Quotient:
     return _lowest_terms(_written(parsed))
 
 
-def coefficients_polynomial(items: Sequence[ParsedFormula], work: sparse.Work) -> Quotient:
-    """sum of c_i * s^(n - i) over a common denominator: the least common multiple of the
-    denominators of the c_i when they are monomials (R, 2*L*C), else their product."""
-    quotients = [_written(p) for p in items]
+def over_common_denominator(quotients: Sequence[Quotient], work: sparse.Work) -> tuple[list[dict], dict]:
+    """([n_i * L / d_i], L) for quotients n_i / d_i: the numerators over one common
+    denominator L, the least common multiple of the d_i when they are monomials (R, 2*L*C),
+    else the product of the distinct ones."""
     distinct: list[dict] = []
     for _, den in quotients:
         if den not in distinct:
@@ -68,9 +72,8 @@ def coefficients_polynomial(items: Sequence[ParsedFormula], work: sparse.Work) -
     common = sparse.constant(1)
     for den in distinct:
         common = sparse.monomial_lcm(common, den) if monomials else sparse.multiply(common, den, work)
-    n = len(items) - 1
-    total: dict = {}
-    for i, (num, den) in enumerate(quotients):
+    numerators = []
+    for num, den in quotients:
         if monomials:
             cofactor = sparse.monomial_quotient(common, den)
         else:
@@ -78,9 +81,24 @@ def coefficients_polynomial(items: Sequence[ParsedFormula], work: sparse.Work) -
             for other in distinct:
                 if other != den:
                     cofactor = sparse.multiply(cofactor, other, work)
-        term = sparse.multiply(num, cofactor, work)
-        sparse.add_into(total, {m + (n - i): c for m, c in term.items()})  # times s^(n-i)
+        numerators.append(sparse.multiply(num, cofactor, work))
+    return numerators, common
+
+
+def coefficients_polynomial(items: Sequence[ParsedFormula], work: sparse.Work) -> Quotient:
+    """sum of c_i * s^(n - i) over the common denominator of the c_i
+    (:func:`over_common_denominator`)."""
+    numerators, common = over_common_denominator([_written(p) for p in items], work)
+    n = len(items) - 1
+    total: dict = {}
+    for i, term in enumerate(numerators):
+        sparse.add_into(total, _times_variable(term, n - i))
     return _lowest_terms((total, common))
+
+
+def _times_variable(p: dict, power: int) -> dict:
+    """p * s^power (the variable is the first slot: its exponent is the lowest bits)."""
+    return {m + power: c for m, c in p.items()}
 
 
 def loop_parts(plant: ParsedFormula, controller: ParsedFormula, work: sparse.Work) -> tuple[dict, dict]:
@@ -95,6 +113,66 @@ def closed_loop(parts: tuple[dict, dict]) -> Quotient:
     """den_P * den_C + num_P * num_C from :func:`loop_parts`: unity negative feedback."""
     return _lowest_terms((sparse.add(*parts), sparse.constant(1)))
 
+
+
+def state_space_polynomial(a: Matrix, b: Matrix | None, k: Matrix | None, work: sparse.Work) -> Quotient:
+    """det(sI - A), or det(sI - (A - B K)) with the state feedback u = -K x, over a
+    parameter-only denominator: each row of sI - A + B K is multiplied by the common
+    denominator of its entries, and the determinant of those rows divided by their product."""
+    n = len(a)
+    if k is not None and b is not None:
+        numerators, k_common = over_common_denominator([_written(f) for row in k for f in row], work)
+        k_rows = [numerators[r * n:(r + 1) * n] for r in range(len(k))]
+    rows, commons = [], []
+    for i in range(n):
+        quotients = [_negated(_written(f)) for f in a[i]]
+        if k is not None and b is not None:
+            b_row, b_common = over_common_denominator([_written(f) for f in b[i]], work)
+            below = sparse.multiply(b_common, k_common, work)
+            for j in range(n):
+                entry: dict = {}
+                for gain, k_row in zip(b_row, k_rows, strict=True):
+                    sparse.add_into(entry, sparse.multiply(gain, k_row[j], work))
+                quotients.append((entry, below))
+        numerators, common = over_common_denominator(quotients, work)
+        row = numerators[:n]
+        for j, extra in enumerate(numerators[n:]):
+            row[j] = sparse.add(row[j], extra)
+        row[i] = sparse.add(row[i], _times_variable(common, 1))
+        rows.append(row)
+        commons.append(common)
+    return _determinant_over(rows, commons, work)
+
+
+def mechanical_polynomial(mass: Matrix, damping: Matrix | None, stiffness: Matrix,
+                          work: sparse.Work) -> Quotient:
+    """det(M s^2 + C s + K) over a parameter-only denominator (rows cleared as in
+    :func:`state_space_polynomial`); no damping matrix is a zero one."""
+    n = len(mass)
+    rows, commons = [], []
+    for i in range(n):
+        parts = [mass[i], stiffness[i]] + ([damping[i]] if damping is not None else [])
+        numerators, common = over_common_denominator([_written(f) for part in parts for f in part], work)
+        row = [sparse.add(_times_variable(numerators[j], 2), numerators[n + j]) for j in range(n)]
+        if damping is not None:
+            row = [sparse.add(row[j], _times_variable(numerators[2 * n + j], 1)) for j in range(n)]
+        rows.append(row)
+        commons.append(common)
+    return _determinant_over(rows, commons, work)
+
+
+def _negated(quotient: Quotient) -> Quotient:
+    """-(num/den), the sign carried by the numerator."""
+    return sparse.negate(quotient[0]), quotient[1]
+
+
+def _determinant_over(rows: list[list[dict]], commons: list[dict], work: sparse.Work) -> Quotient:
+    """det(rows) / product(commons): the determinant of the matrix whose row i is rows[i] /
+    commons[i]."""
+    denominator = sparse.constant(1)
+    for common in commons:
+        denominator = sparse.multiply(denominator, common, work)
+    return _lowest_terms((determinant(rows, work), denominator))
 
 
 def as_coefficients(poly_or_coeffs: object, variable: str = "s") -> tuple[Fraction, ...]:
