@@ -45,7 +45,7 @@ def _plain(value: object, formula: bool = False) -> object:
 
 def _case_data(title: object, parameters: object, expression: object, coefficients: object,
                plant: object, controller: object, variable: object, summary: object,
-               sample_time: object, requirements: object) -> dict:
+               sample_time: object, requirements: object, matrices: Mapping[str, object]) -> dict:
     """The data of the equivalent case file (top-level keys only where given)."""
     data: dict = {"title": title, "variable": variable}
     if summary:
@@ -64,6 +64,9 @@ def _case_data(title: object, parameters: object, expression: object, coefficien
         if controller is not None:
             loop["controller"] = controller
         polynomial["loop"] = _plain(loop, formula=True)
+    for form, tables in matrices.items():  # state_space, mechanical: matrices of formulas
+        if tables is not None:
+            polynomial[form] = _plain(tables, formula=True)
     data["polynomial"] = polynomial
     if requirements is not None:
         data["requirements"] = _plain(requirements) if isinstance(requirements, Mapping) else requirements
@@ -84,7 +87,9 @@ def make_case(title: str, parameters: Mapping[str, Mapping[str, object]], *,
               expression: str | None = None, coefficients: Sequence[object] | None = None,
               plant: str | None = None, controller: str | None = None, variable: str = "s",
               summary: str = "", sample_time: object = None,
-              requirements: Mapping[str, object] | None = None) -> Case:
+              requirements: Mapping[str, object] | None = None,
+              state_space: Mapping[str, object] | None = None,
+              mechanical: Mapping[str, object] | None = None) -> Case:
     """Build a case from Python values, exactly as a case file with the same content.
 
     Parameters
@@ -95,10 +100,12 @@ def make_case(title: str, parameters: Mapping[str, Mapping[str, object]], *,
         name -> table with the keys of ``[parameters.NAME]``: ``nominal`` and ``tolerance``
         (or ``range = [low, high]``), optional ``unit``, ``note``, ``distribution``, ``limits``.
         Numbers may be int, float, ``Fraction`` or text (``"4.7u"``, ``"5%"``, ``"2/3"``).
-    expression, coefficients, plant, controller
+    expression, coefficients, plant, controller, state_space, mechanical
         The polynomial, in exactly one form: the characteristic polynomial; its coefficients,
-        highest power first; or the loop's plant (and controller, default 1) in unity
-        negative feedback.
+        highest power first; the loop's plant (and controller, default 1) in unity
+        negative feedback; or the matrices of ``[polynomial.state_space]`` (``A``, optional
+        ``B``, ``C``, ``K``) or ``[polynomial.mechanical]`` (``M``, ``C``, ``K``), as lists of
+        rows of formulas.
     variable, summary, sample_time, requirements
         As in a case file (``requirements`` holds the keys of ``[requirements]``).
 
@@ -120,6 +127,7 @@ def make_case(title: str, parameters: Mapping[str, Mapping[str, object]], *,
     ('expression', ('a',), '<python>')
     """
     data = _case_data(title, parameters, expression, coefficients, plant, controller, variable,
-                      summary, sample_time, requirements)
+                      summary, sample_time, requirements,
+                      {"state_space": state_space, "mechanical": mechanical})
     case = case_from_data(data, PYTHON_PATH, "")  # checked before anything is serialised
     return dataclasses.replace(case, sha256=hashlib.sha256(canonical_text(data).encode("utf-8")).hexdigest())
