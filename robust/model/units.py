@@ -5,8 +5,8 @@ dimension. The walk runs over the formula as written (:class:`robust.model.expr.
 variable ``s`` is a frequency (1/time), ``z`` a pure number; products, quotients and integer
 powers combine dimensions. What cannot be known is not compared: a parameter without a unit,
 and a written number (``0.025*s + 1`` writes a time constant in seconds, ``s + 600`` a
-frequency in rad/s), make their term's dimension unknown. A sum takes the dimension of its
-known terms.
+frequency in rad/s), make their term's dimension unknown; only a factor 1, as in
+``1/(L*s + R)``, is a pure number. A sum takes the dimension of its known terms.
 
 The forms add their own sums: the terms of an expression; ``a_k * s^k`` of a coefficient
 list; ``1 + P*C`` of a loop, whose loop gain must be dimensionless (a plant or a controller
@@ -132,11 +132,13 @@ def _power(name: str, exponent: float) -> str:
 
 
 class _Mismatch(Exception):
-    """Two terms of one sum of different dimensions (turned into a CaseError by the caller)."""
+    """Two terms of one sum of different dimensions (turned into a CaseError by the caller);
+    ``position`` is the later term's place in the sum."""
 
-    def __init__(self, problem: str):
+    def __init__(self, problem: str, position: int):
         super().__init__(problem)
         self.problem = problem
+        self.position = position
 
 
 def _clash(first: str, first_dimension: Dimension, second: str, second_dimension: Dimension) -> str:
@@ -179,13 +181,13 @@ def _is_one(number: str) -> bool:
 def _common(terms) -> Dimension:
     """The one dimension of the known terms ``(dimension, text)`` of a sum, None if none."""
     reference: tuple[Dimension, str] | None = None
-    for dimension, term in terms:
+    for position, (dimension, term) in enumerate(terms):
         if dimension is None:
             continue
         if reference is None:
             reference = (dimension, term)
         elif dimension != reference[0]:
-            raise _Mismatch(_clash(reference[1], reference[0], term, dimension))
+            raise _Mismatch(_clash(reference[1], reference[0], term, dimension), position)
     return None if reference is None else reference[0]
 
 
@@ -245,19 +247,17 @@ def check_units(parameters: Sequence[Any], variable: str, form: str,
 def _check_coefficients(formulas, results, frequency: Dimension, variable: str, fail: Fail) -> None:
     """a_k * s^k: one dimension over the whole list (the coefficients are a sum's terms)."""
     n = len(formulas) - 1
-    reference: tuple[Dimension, str] | None = None
-    for (section, key, index, parsed), dimension in zip(formulas, results, strict=True):
-        if dimension is None:
-            continue
+    terms = []
+    for (_, _, index, parsed), dimension in zip(formulas, results, strict=True):
         k = n - index
         term = f"({parsed.text})" if parsed.tree.kind == "sum" else parsed.text
         term += "" if k == 0 else f"*{variable}" if k == 1 else f"*{variable}^{k}"
-        dimension = dimension * frequency**k
-        if reference is None:
-            reference = (dimension, term)
-        elif dimension != reference[0]:
-            raise fail(section, key, _clash(reference[1], reference[0], term, dimension), EXPECTED_SUM,
-                       index=index)
+        terms.append((None if dimension is None else dimension * frequency**k, term))
+    try:
+        _common(terms)
+    except _Mismatch as mismatch:
+        section, key, index, _ = formulas[mismatch.position]
+        raise fail(section, key, mismatch.problem, EXPECTED_SUM, index=index) from None
 
 
 def _check_loop_gain(plant: Dimension, controller: Dimension, fail: Fail) -> None:
