@@ -136,11 +136,27 @@ def _two_mass():
     return p, nominal
 
 
+def _converter_units():
+    """From the circuit's impedances (the header's derivation), not from the file's formulas."""
+    Vin, Vm, L, rL, C, rc, Rl, R1, R2, C1, C2 = sp.symbols("Vin Vm L rL C rc R R1 R2 C1 C2")
+    z_out = 1 / (1 / Rl + 1 / (rc + 1 / (S * C)))  # load parallel to the capacitor and its ESR
+    plant = Vin / Vm * z_out / (z_out + rL + S * L)
+    z_feedback = 1 / (1 / (R2 + 1 / (S * C1)) + S * C2)  # R2 + C1 in series, C2 across
+    loop = sp.cancel(sp.together(plant * z_feedback / R1))
+    num, den = sp.fraction(loop)
+    p = sp.expand(den + num)  # unity negative feedback: the numerator of 1 + P*Gc
+    nominal = {Vin: 12, Vm: Q("1.5"), L: Q("10e-6"), rL: Q("15e-3"), C: Q("470e-6"),
+               rc: (Q("0.040") + Q("0.080")) / 2, Rl: (Q("0.66") + Q("3.3")) / 2, R1: Q("10e3"),
+               R2: Q("27e3"), C1: Q("3.3e-9"), C2: Q("56e-12")}
+    return p, nominal
+
+
 # expected verdict (from each file's header) and the rebuilt polynomial
 EXPECTED = {
     "digital_current_loop": ("stable", _digital_current_loop),
     "servo_lead_criteria": ("stable", _servo_lead),
     "active_filter": ("stable", _active_filter),
+    "converter_units": ("stable", _converter_units),
     "buck_voltage_loop": ("stable", _buck),
     "interval_measured": ("stable", _interval_measured),
     "interval_unstable": ("unstable", _interval_unstable),
@@ -208,6 +224,7 @@ def test_nominal_coefficients_equal_an_independent_sympy_expansion(path):
     ("maglev_lead", "multilinear"), ("servo_pid", "polynomial"), ("thermal_pi_affine", "affine"),
     ("isolation_mount", "multilinear"), ("servo_lead_criteria", "multilinear"),
     ("digital_current_loop", "multilinear"), ("two_mass_mechanism", "multilinear"),
+    ("converter_units", "multilinear"),
 ])
 def test_case_dependence_class_is_the_one_the_header_derives(stem, kind):
     """Each case's dependence class is the one its header comment derives."""

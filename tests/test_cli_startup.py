@@ -18,7 +18,7 @@ import pytest
 
 from robust.analysis import defaults, verdict
 
-HEAVY = ("sympy", "scipy", "networkx", "matplotlib", "numpy", "mpmath")
+HEAVY = ("sympy", "scipy", "networkx", "matplotlib", "numpy", "mpmath", "pint")
 
 _LOADED = """
 import json, runpy, sys
@@ -43,12 +43,13 @@ def loaded_after(*args: str) -> set[str]:
                                   ("routh", "s^3 + 2*s^2 + 3*s + 1"),
                                   ("routh", "--json", "--coeffs", "1, 2, 3")])
 def test_quick_commands_load_no_heavy_library(args):
-    """--help and routh answer without numpy, sympy, scipy, networkx or matplotlib."""
+    """--help and routh answer without numpy, sympy, scipy, networkx, matplotlib or pint."""
     assert loaded_after(*args) & set(HEAVY) == set()
 
 
 def test_interval_check_loads_only_numpy_of_the_heavy_libraries():
-    """check of an interval case needs neither sympy nor any of the report's libraries."""
+    """check of an interval case (no units) needs neither sympy, pint nor any of the report's
+    libraries."""
     loaded = loaded_after("check", str(Path(__file__).parent.parent / "cases" / "interval_measured.toml"))
     assert loaded & set(HEAVY) == {"numpy"}
 

@@ -358,3 +358,49 @@ def test_literals_of_thousands_of_digits_are_exact():
     digits = "7" * 5000
     assert parse_number(digits) == Fraction(int(digits[:2000]) * 10**3000 + int(digits[2000:]))
     assert polynomial_coefficients(f"{digits}*s + 1")[0] == parse_number(digits)
+
+
+# -- the formula as written (keep_tree) ----------------------------------------------------------
+
+_ATOMS = st.sampled_from(["R1", "C1", "K", "s", "2", "0.5", "1"])
+_FORMULAS = st.recursive(
+    _ATOMS,
+    lambda inner: st.one_of(
+        st.tuples(inner, st.sampled_from([" + ", " - ", "*", "/"]), inner).map("".join),
+        st.tuples(inner, st.sampled_from(["^2", "^-1"])).map(lambda t: f"({t[0]}){t[1]}"),
+        inner.map(lambda t: f"-({t})"),
+    ),
+    max_leaves=8,
+)
+
+
+@given(_FORMULAS)
+def test_keeping_the_tree_changes_nothing_and_each_node_reads_as_a_formula(text):
+    """With keep_tree the expansion is the same; every node's span is itself a formula whose
+    value is that node's (a product or sum rebuilt from its children's spans by ordinary
+    algebra, common practice, no source)."""
+    try:
+        plain = parse_formula(text, NAMES)
+    except FormulaError:  # a division by zero the strategy may write
+        return
+    kept = parse_formula(text, NAMES, keep_tree=True)
+    assert plain.tree is None and kept.tree is not None
+    assert dict(kept.expanded_numerator) == dict(plain.expanded_numerator)
+    assert dict(kept.expanded_denominator) == dict(plain.expanded_denominator)
+
+    def value(node):
+        return parsed(text[node.start:node.end])
+
+    stack = [kept.tree]
+    while stack:
+        node = stack.pop()
+        stack.extend(node.children)
+        if node.kind == "name":
+            assert text[node.start:node.end] == node.name
+        elif node.kind == "product":
+            rebuilt = sp.Integer(1)
+            for child, inverted in zip(node.children, node.inverted, strict=True):
+                rebuilt = rebuilt / value(child) if inverted else rebuilt * value(child)
+            assert same(sp.cancel(value(node) ** 2), sp.cancel(rebuilt**2))  # a leading sign aside
+        elif node.kind == "power":
+            assert same(sp.cancel(value(node)), sp.cancel(value(node.children[0]) ** node.exponent))

@@ -147,8 +147,12 @@ _HOSTILE = '<script>alert("x")</script>'
 
 
 def test_case_html_escapes_what_was_written():
-    """A title, unit and note with markup show as text, never as markup."""
-    case = robust.make_case(_HOSTILE, {"a": {"nominal": 3, "tolerance": "10%", "unit": "<b>V</b>",
+    """A title, summary and note with markup show as text, never as markup (a unit with markup
+    is refused before: the unit check reads only unit text)."""
+    with pytest.raises(robust.CaseError, match="parameters.a.unit"):
+        robust.make_case("t", {"a": {"nominal": 3, "tolerance": "10%", "unit": "<b>V</b>"}},
+                         expression="s^2 + a*s + 1")
+    case = robust.make_case(_HOSTILE, {"a": {"nominal": 3, "tolerance": "10%", "unit": "1/s",
                                              "note": "<img src=x onerror=alert(1)>"}},
                             expression="s^2 + a*s + 1", summary="<i>summary</i>")
     html = case._repr_html_()

@@ -21,7 +21,7 @@ from ..errors import CaseError, FormulaError, InputError, did_you_mean
 from ..exact import sparse
 from ..exact.numbers import approx_text, parse_number, to_fraction
 from .display import HtmlDisplay
-from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, new_work, parse_formula
+from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, ParsedFormula, new_work, parse_formula
 from .family import Box, UncertainPolynomial, build_family, discrete_family
 from .forms import closed_loop, coefficients_polynomial, expression_polynomial, loop_parts
 from .matrices import FORMS as MATRIX_FORMS
@@ -156,8 +156,11 @@ class _Reader:
         return start + 1
 
     def error(self, section: str, key: str | None, problem: str, expected: str = "",
-              value: object = None) -> CaseError:
+              value: object = None, index: int | tuple[int, ...] | None = None) -> CaseError:
+        """The error of ``section.key`` (``section.key[i]`` for an item of a list,
+        ``section.key[i][j]`` for an entry of a matrix)."""
         field = section + ("." + key if key else "") if section else (key or "")
+        field += "".join(f"[{i}]" for i in ((index,) if isinstance(index, int) else index or ()))
         return CaseError(self.path, field, problem, expected, value,
                          self.line_of(section, key) if section or key else None)
 
@@ -312,18 +315,17 @@ def _limits(reader: _Reader, section: str, value: object, low: Fraction, high: F
 
 
 def _formula(reader: _Reader, section: str, key: str, text: object, names, variable,
-             polynomial: bool, work: sparse.Work, index: int | tuple[int, ...] | None = None):
-    field = key + "".join(f"[{i}]" for i in ((index,) if isinstance(index, int) else index or ()))
+             polynomial: bool, work: sparse.Work, index: int | tuple[int, ...] | None = None,
+             keep_tree: bool = False):
     if not isinstance(text, str | int | float) or isinstance(text, bool):
         raise reader.error(section, key, "a formula must be text", '"..."', text)
     try:
-        return parse_formula(str(text), names, variable, polynomial, work)
+        return parse_formula(str(text), names, variable, polynomial, work, keep_tree)
     except FormulaError as error:
-        line = reader.line_of(section, key)
-        raise CaseError(reader.path, f"{section}.{field}",
-                        f"{error.problem} at column {error.position} of "
-                        f"{error.text if len(error.text) <= 60 else error.text[:57] + '...'!r}",
-                        error.expected, None, line) from None
+        raise reader.error(section, key,
+                           f"{error.problem} at column {error.position} of "
+                           f"{error.text if len(error.text) <= 60 else error.text[:57] + '...'!r}",
+                           error.expected, index=index) from None
 
 
 def _top_level_hint(key: str, value: object, allowed: set[str]) -> str:
@@ -425,11 +427,14 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
     formulas: list[tuple[str, str]] = []
     parts = None  # the loop's (den_P den_C, num_P num_C)
     work = new_work()  # one account for every formula of the case and for combining them
+    units = any(p.unit.strip() for p in parameters)  # then each formula keeps its tree
+    read: list[tuple[str, str, int | None, ParsedFormula]] = []  # for the dimension check
     try:
         if form == "expression":
-            numerator, denominator = expression_polynomial(
-                _formula(reader, "polynomial", "expression", poly["expression"], names, variable, True,
-                         work))
+            read.append(("polynomial", "expression", None, _formula(
+                reader, "polynomial", "expression", poly["expression"], names, variable, True, work,
+                keep_tree=units)))
+            numerator, denominator = expression_polynomial(read[0][3])
             formulas.append(("expression", str(poly["expression"])))
         elif form == "coefficients":
             items = poly["coefficients"]
@@ -440,8 +445,9 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
                 raise reader.error("polynomial", "coefficients", "degree too high",
                                    f"at most {MAX_DEGREE + 1} coefficients")
             n = len(items) - 1
-            parsed = [_formula(reader, "polynomial", "coefficients", item, names, None, False, work, i)
+            parsed = [_formula(reader, "polynomial", "coefficients", item, names, None, False, work, i, units)
                       for i, item in enumerate(items)]
+            read += [("polynomial", "coefficients", i, p) for i, p in enumerate(parsed)]
             formulas += [(f"coefficients[{i}] ({variable}^{n - i})", str(item)) for i, item in enumerate(items)]
             numerator, denominator = coefficients_polynomial(parsed, work)
         elif form in MATRIX_FORMS:
@@ -456,9 +462,11 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
                 raise reader.error("polynomial.loop", None, "a loop needs plant (and optionally controller)",
                                    'plant = "...", controller = "..."')
             plant = _formula(reader, "polynomial.loop", "plant", loop["plant"], names, variable, False,
-                             work)
+                             work, keep_tree=units)
             controller = _formula(reader, "polynomial.loop", "controller", loop.get("controller", "1"),
-                                  names, variable, False, work)
+                                  names, variable, False, work, keep_tree=units)
+            read += [("polynomial.loop", "plant", None, plant),
+                     ("polynomial.loop", "controller", None, controller)]
             formulas.append(("plant", str(loop["plant"])))
             formulas.append(("controller", str(loop.get("controller", "1"))))
             parts = loop_parts(plant, controller, work)
@@ -471,6 +479,8 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
         raise
     except InputError as error:  # the work account of combining the formulas ran out
         raise reader.error("polynomial", form, error.problem, error.expected) from None
+    if units:
+        _check_units(reader, parameters, variable, form, read)
     if sparse.degree_in(denominator, 0) > 0:
         raise reader.error("polynomial", form,
                            f"the characteristic polynomial is not polynomial in {variable}",
@@ -514,6 +524,17 @@ def _with_loop(family: UncertainPolynomial, parts: tuple[dict, dict], slots: int
     if content is not None:
         lists = [[divide(c, content) if not c.is_zero else c for c in coefficients] for coefficients in lists]
     return dataclasses.replace(family, loop=(tuple(lists[0]), tuple(lists[1])))
+
+
+def _check_units(reader: _Reader, parameters: tuple[Parameter, ...], variable: str, form: str,
+                 read: list) -> None:
+    """Every sum of the formulas adds terms of one dimension (see robust.model.units)."""
+    from .units import check_units  # loads pint: only for a case with units
+
+    unchecked = check_units(parameters, variable, form, read, reader.error)
+    if unchecked:
+        reader.notes.append(f"{reader.path}: parameters without a unit, so the terms holding them are "
+                            f"not checked for dimension: {', '.join(unchecked)}")
 
 
 def _check_total_length(reader: _Reader, form: str, value: object) -> None:

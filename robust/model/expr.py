@@ -34,6 +34,7 @@ __all__ = [
     "MAX_TERMS",
     "MAX_TOTAL_LENGTH",
     "MAX_WORK",
+    "Node",
     "ParsedFormula",
     "new_work",
     "parse_formula",
@@ -75,6 +76,26 @@ class _Size:
 
 
 @dataclass(frozen=True, slots=True)
+class Node:
+    """One step of a formula as written, kept on request for walks other than expanding it
+    (such as the dimension check of :mod:`robust.model.units`).
+
+    ``kind`` is "number", "name", "sum", "product" or "power"; the node was read from
+    ``text[start:end]``. ``children`` are the terms of a sum (signs dropped), the factors of a
+    product (``inverted[i]``: factor i divides) or the base of a power (``exponent``). A
+    unary sign or a pair of parentheses adds no node.
+    """
+
+    kind: str
+    start: int
+    end: int
+    children: tuple[Node, ...] = ()
+    inverted: tuple[bool, ...] = ()
+    exponent: int = 0
+    name: str = ""  # of a name: the name (the variable included)
+
+
+@dataclass(frozen=True, slots=True)
 class ParsedFormula:
     """A formula read and expanded exactly.
 
@@ -91,6 +112,8 @@ class ParsedFormula:
         The formula as one quotient exactly as written, expanded: common factors of the two
         are not cancelled, so a pole-zero cancellation inside a formula cannot hide a mode.
         Read-only sparse polynomials over ``slots`` (see :mod:`robust.exact.sparse`).
+    tree
+        The formula as written (:class:`Node`), when asked for with ``keep_tree``; else None.
     """
 
     text: str
@@ -98,6 +121,7 @@ class ParsedFormula:
     slots: tuple[str, ...]
     expanded_numerator: Mapping = field(repr=False, compare=False)
     expanded_denominator: Mapping = field(repr=False, compare=False)
+    tree: Node | None = field(default=None, repr=False, compare=False)
 
     @property
     def numerator(self):
@@ -210,7 +234,7 @@ class _Frac:
 
 class _Parser:
     def __init__(self, text: str, names: tuple[str, ...], variable: str | None, polynomial: bool,
-                 work: sparse.Work):
+                 work: sparse.Work, keep_tree: bool = False):
         self.text = text
         self.names = names
         self.variable = variable
@@ -227,6 +251,9 @@ class _Parser:
         count = 1 + len(names)
         self.no_degree = (0,) * count
         self.unit_degrees = [tuple(int(i == j) for j in range(count)) for i in range(count)]
+        # the formula as written, when kept: each grammar rule leaves its one node on this stack
+        self.nodes: list[Node] | None = [] if keep_tree else None
+        self.end = 0  # where the last token taken ends (0-based, exclusive)
 
     # -- token helpers ---------------------------------------------------------------------
     @property
@@ -239,7 +266,17 @@ class _Parser:
     def take(self) -> _Token:
         token = self.token
         self.index += 1
+        self.end = token.position - 1 + len(token.text)
         return token
+
+    def keep(self, kind: str, start: int, count: int = 1, **fields) -> None:
+        """Replace the last ``count`` nodes by one of ``kind`` read from ``start`` on (when kept)."""
+        nodes = self.nodes
+        if nodes is None:
+            return
+        children = tuple(nodes[len(nodes) - count:]) if count else ()
+        del nodes[len(nodes) - count:]
+        nodes.append(Node(kind, start, self.end, children, **fields))
 
     def is_op(self, *ops: str) -> bool:
         return self.token.kind == "op" and self.token.text in ops
@@ -267,11 +304,13 @@ class _Parser:
         return self.fail(f"unexpected {token.text!r}", "an operator or the end")
 
     def sum(self) -> tuple[_Frac, _Size]:
+        start, terms = self.token.position - 1, 1
         value, size = self.product()
         owned = False  # whether value.num is this loop's own dict, to add into in place
         while self.is_op("+", "-"):
             op = self.take()
             other, other_size = self.product()
+            terms += 1
             size = _add_sizes(size, other_size)
             self.check_size(size, op)
             if value.den == other.den:  # terms over one denominator: add in place, no copy
@@ -283,19 +322,25 @@ class _Parser:
                 value, size = self.expand(op, size, value.add,
                                           other if op.text == "+" else other.negate())
                 owned = True
+        if terms > 1:
+            self.keep("sum", start, terms)
         return value, size
 
     def product(self) -> tuple[_Frac, _Size]:
+        start, inverted = self.token.position - 1, [False]
         value, size = self.unary()
         while self.is_op("*", "/"):
             op = self.take()
             other, other_size = self.unary()
+            inverted.append(op.text == "/")
             if op.text == "/":
                 self.check_divisor(other, other_size, op, "division by")
                 other = other.invert()
             size = _mul_sizes(size, other_size)
             self.check_size(size, op)
             value, size = self.expand(op, size, value.mul, other)
+        if len(inverted) > 1:
+            self.keep("product", start, len(inverted), inverted=tuple(inverted))
         return value, size
 
     def check_divisor(self, divisor: _Frac, size: _Size, op: _Token, what: str) -> None:
@@ -330,6 +375,7 @@ class _Parser:
         return self.power()
 
     def power(self) -> tuple[_Frac, _Size]:
+        start = self.token.position - 1
         base, size = self.atom()
         if self.is_op("^", "**"):
             op = self.take()
@@ -345,6 +391,7 @@ class _Parser:
                 raise self.fail("number too large", f"constants below 2^{_MAX_NUMBER_BITS}", op)
             size = _pow_size(size, abs(exponent))
             self.check_size(size, op)
+            self.keep("power", start, exponent=exponent)
             return self.expand(op, size, base.power, exponent)
         return base, size
 
@@ -390,6 +437,7 @@ class _Parser:
             # a decimal is a constant of the numerator, as written (0.05*s: the coefficient 1/20);
             # integers stay Python ints, the fastest exact numbers here
             constant = int(value) if value.denominator == 1 else to_mpq(value)
+            self.keep("number", token.position - 1, 0)
             return _Frac(sparse.constant(constant), _PONE), _Size(self.no_degree, 1)
         if token.kind == "name":
             self.take()
@@ -410,6 +458,7 @@ class _Parser:
             if token.text != self.variable:
                 self.used.add(token.text)
             slot = self.slots[token.text]
+            self.keep("name", token.position - 1, 0, name=token.text)
             return _Frac(sparse.variable(slot), _PONE), _Size(self.unit_degrees[slot], 1)
         if self.is_op("("):
             self.take()
@@ -479,6 +528,7 @@ def parse_formula(
     variable: str | None = "s",
     polynomial: bool = False,
     work: sparse.Work | None = None,
+    keep_tree: bool = False,
 ) -> ParsedFormula:
     """Parse and expand a formula exactly, without evaluating any user text.
 
@@ -495,6 +545,8 @@ def parse_formula(
     work
         The account expanding is paid from (several formulas may share one); by default a
         fresh one of :data:`MAX_WORK` term products.
+    keep_tree
+        Keep the formula as written in :attr:`ParsedFormula.tree` (:class:`Node`).
 
     Raises
     ------
@@ -511,10 +563,11 @@ def parse_formula(
     if len(text) > MAX_LENGTH:
         raise FormulaError(text, MAX_LENGTH, "formula too long", f"at most {MAX_LENGTH} characters")
     declared = tuple(dict.fromkeys(names))
-    parser = _Parser(text, declared, variable, polynomial, work or new_work())
+    parser = _Parser(text, declared, variable, polynomial, work or new_work(), keep_tree)
     value, _ = parser.parse()
     return ParsedFormula(text, tuple(sorted(parser.used)), (variable or "", *declared),
-                         MappingProxyType(value.num), MappingProxyType(value.den))
+                         MappingProxyType(value.num), MappingProxyType(value.den),
+                         parser.nodes[0] if parser.nodes else None)
 
 
 def polynomial_coefficients(text: str, variable: str = "s") -> list[Fraction]:

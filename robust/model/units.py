@@ -1,0 +1,270 @@
+"""Dimension checks of a case's formulas, with pint's unit registry.
+
+Where parameters carry a ``unit``, every sum of every formula must add terms of one
+dimension. The walk runs over the formula as written (:class:`robust.model.expr.Node`): the
+variable ``s`` is a frequency (1/time), ``z`` a pure number; products, quotients and integer
+powers combine dimensions. What cannot be known is not compared: a parameter without a unit,
+and a written number (``0.025*s + 1`` writes a time constant in seconds, ``s + 600`` a
+frequency in rad/s), make their term's dimension unknown; only a factor 1, as in
+``1/(L*s + R)``, is a pure number. A sum takes the dimension of its known terms.
+
+The forms add their own sums: the terms of an expression; ``a_k * s^k`` of a coefficient
+list; ``1 + P*C`` of a loop, whose loop gain must be dimensionless (a plant or a controller
+may carry a dimension, e.g. V/A). pint is imported only here and only for a case with units,
+so commands on other cases do not load it.
+"""
+
+from __future__ import annotations
+
+import re
+import tokenize
+from collections.abc import Callable, Sequence
+from fractions import Fraction
+from functools import cache
+from typing import Any
+
+from ..errors import CaseError, InputError
+from .expr import Node, ParsedFormula
+
+__all__ = ["EXPECTED_SUM", "MAX_UNIT_LENGTH", "check_units", "describe", "unit_dimension"]
+
+#: Longest unit text handed to pint.
+MAX_UNIT_LENGTH = 80
+#: What a mismatch asks for, in every message.
+EXPECTED_SUM = "terms of one dimension in every sum"
+_UNIT_EXAMPLES = 'a unit such as "ohm", "uF", "mH", "V/A", "rad/s", "N*m/A" or "1" for a pure number'
+_CHARACTERS = re.compile(r"[\w ()*/^.+\-%·]+\Z")
+_EXPONENT = re.compile(r"(\^|\*\*)\s*(\(\s*[-+]?\d{1,2}\s*\)|[-+]?\d{1,2})(?!\s*[\d.(^]|\s*\*\*)")
+# names pint gives derived dimensions, shown in messages (pint's own name on the left)
+_NAMED = (("resistance", "resistance"), ("capacitance", "capacitance"), ("inductance", "inductance"),
+          ("electric_potential", "voltage"), ("charge", "charge"), ("power", "power"),
+          ("energy", "energy"), ("force", "force"), ("magnetic_flux", "magnetic flux"))
+
+Dimension = Any  # pint's UnitsContainer of base dimensions; None where unknown
+Fail = Callable[..., CaseError]  # (section, key, problem, expected, index=...) -> the error
+
+
+@cache
+def _registry():
+    import pint  # heavy (it loads numpy): only for a case whose parameters carry units
+
+    return pint.UnitRegistry()
+
+
+@cache
+def _dimensionless() -> Dimension:
+    return _registry().get_dimensionality("[]")
+
+
+def _errors() -> tuple[type[BaseException], ...]:
+    """What pint raises on text it cannot read (its parser asserts on a dangling operator)."""
+    import pint
+
+    return (pint.PintError, ValueError, TypeError, AttributeError, AssertionError, SyntaxError,
+            tokenize.TokenError, IndexError, KeyError, ZeroDivisionError, OverflowError)
+
+
+def unit_dimension(text: str) -> Dimension:
+    """The dimension of a unit as pint reads it (``"mH"`` -> [inductance]).
+
+    Raises
+    ------
+    InputError
+        With the problem in words, when pint cannot read the text as a unit.
+    """
+    if len(text) > MAX_UNIT_LENGTH:
+        raise _unreadable(f"a unit of {len(text)} characters is too long (at most {MAX_UNIT_LENGTH})")
+    if not _CHARACTERS.match(text):
+        raise _unreadable(f"{text!r} is not a unit (letters, digits, * / ^ and parentheses only)")
+    # pint computes powers as written: keep exponents small integer literals (no m^9^9^9)
+    for match in re.finditer(r"\^|\*\*", text):
+        if not _EXPONENT.match(text, match.start()):
+            raise _unreadable(f"{text!r} has an exponent that is not a small integer")
+    registry = _registry()
+    try:
+        return registry.parse_units(text).dimensionality
+    except _errors() as error:
+        import pint
+
+        if isinstance(error, pint.UndefinedUnitError):
+            names = error.unit_names
+            name = names if isinstance(names, str) else next(iter(names), "")
+            where = f" ({name!r} is not defined)" if name and name != text else ""
+            raise _unreadable(f"{text!r} is not a unit pint knows{where}") from None
+        if "scaling factor" in str(error):
+            raise _unreadable(f"{text!r} holds a number (the value belongs in nominal)") from None
+        raise _unreadable(f"{text!r} is not a unit pint can read") from None
+
+
+def _unreadable(problem: str) -> InputError:
+    return InputError("unit", problem, _UNIT_EXAMPLES)
+
+
+def describe(dimension: Dimension) -> str:
+    """A dimension in words: ``[resistance^2]``, ``[1/time]``, ``[inductance*time]``, ``dimensionless``.
+
+    A derived dimension pint names (resistance, voltage, ...) is shown by that name, possibly
+    times a power of time; any other by its base dimensions.
+    """
+    if not dimension:
+        return "dimensionless"
+    if len(dimension) > 2:  # [time], [length^2*mass]: best as they are
+        registry = _registry()
+        time = registry.get_dimensionality("[time]")
+        for k in (0, -1, 1, -2, 2):  # the lowest power of time first
+            for pint_name, shown in _NAMED:
+                named = registry.get_dimensionality(f"[{pint_name}]")
+                for power in (1, -1, 2, -2):
+                    if dimension == named**power * time**k:
+                        return "[" + _product(time**k, {shown: power}) + "]"
+    return "[" + _product(dimension) + "]"
+
+
+def _product(rest: Dimension, named_powers: dict[str, int] | None = None) -> str:
+    powers = {**(named_powers or {}), **{n.strip("[]"): e for n, e in rest.items()}}
+    up = [_power(n, e) for n, e in powers.items() if e > 0]
+    down = [_power(n, -e) for n, e in powers.items() if e < 0]
+    return "*".join(up or ["1"]) + "".join("/" + d for d in down)
+
+
+def _power(name: str, exponent: float) -> str:
+    return name if exponent == 1 else f"{name}^{exponent:g}"
+
+
+class _Mismatch(Exception):
+    """Two terms of one sum of different dimensions (turned into a CaseError by the caller);
+    ``position`` is the later term's place in the sum."""
+
+    def __init__(self, problem: str, position: int):
+        super().__init__(problem)
+        self.problem = problem
+        self.position = position
+
+
+def _clash(first: str, first_dimension: Dimension, second: str, second_dimension: Dimension) -> str:
+    one = "is dimensionless" if not first_dimension else f"has dimension {describe(first_dimension)}"
+    other = "is dimensionless" if not second_dimension else f"has {describe(second_dimension)}"
+    return f"{_short(first)} {one}, {_short(second)} {other}"
+
+
+def _short(text: str) -> str:
+    return text if len(text) <= 60 else text[:57] + "..."
+
+
+def _dimension(node: Node, text: str, known: dict[str, Dimension]) -> Dimension:
+    """The dimension of a node (None when unknown); raises _Mismatch at the first sum whose
+    known terms differ."""
+    if node.kind == "name":
+        return known.get(node.name)
+    if node.kind == "number":
+        return None
+    parts = [_dimension(child, text, known) for child in node.children]
+    if node.kind == "power":
+        return None if parts[0] is None else parts[0] ** node.exponent
+    if node.kind == "product":
+        # a factor 1 is the unit itself: 1/(L*s + R) is an admittance
+        parts = [_dimensionless() if child.kind == "number" and _is_one(text[child.start:child.end]) else part
+                 for child, part in zip(node.children, parts, strict=True)]
+        if any(part is None for part in parts):
+            return None
+        result = _dimensionless()
+        for part, inverted in zip(parts, node.inverted, strict=True):
+            result = result / part if inverted else result * part
+        return result
+    return _common(zip(parts, (text[c.start:c.end] for c in node.children), strict=True))
+
+
+def _is_one(number: str) -> bool:
+    return Fraction(number) == 1
+
+
+def _common(terms) -> Dimension:
+    """The one dimension of the known terms ``(dimension, text)`` of a sum, None if none."""
+    reference: tuple[Dimension, str] | None = None
+    for position, (dimension, term) in enumerate(terms):
+        if dimension is None:
+            continue
+        if reference is None:
+            reference = (dimension, term)
+        elif dimension != reference[0]:
+            raise _Mismatch(_clash(reference[1], reference[0], term, dimension), position)
+    return None if reference is None else reference[0]
+
+
+def check_units(parameters: Sequence[Any], variable: str, form: str,
+                formulas: Sequence[tuple[str, str, int | None, ParsedFormula]],
+                fail: Fail) -> tuple[str, ...]:
+    """Check every sum of a case's formulas for one dimension.
+
+    Parameters
+    ----------
+    parameters
+        The case's parameters (``name`` and ``unit``; an empty unit is unchecked).
+    variable
+        ``"z"`` (a pure number) or a continuous-time variable (1/time).
+    form
+        ``"expression"``, ``"coefficients"`` or ``"loop"``.
+    formulas
+        ``(section, key, index, parsed)`` of each formula, parsed with ``keep_tree``; a loop's
+        plant first, then its controller; a coefficient list highest power first.
+    fail
+        Builds the error of a field: ``fail(section, key, problem, expected, index=...)``.
+
+    Returns
+    -------
+    tuple of str
+        The names of the parameters without a unit (not checked).
+
+    Raises
+    ------
+    CaseError
+        Through ``fail``: a unit pint cannot read, or two terms of one sum of different
+        dimensions.
+    """
+    known: dict[str, Dimension] = {}
+    for parameter in parameters:
+        if parameter.unit.strip():
+            try:
+                known[parameter.name] = unit_dimension(parameter.unit.strip())
+            except InputError as error:
+                raise fail(f"parameters.{parameter.name}", "unit", error.problem, error.expected) from None
+    known[variable] = _dimensionless() if variable == "z" else _registry().get_dimensionality("1/[time]")
+    results = []
+    for section, key, index, parsed in formulas:
+        if parsed.tree is None:  # parsed without keep_tree: nothing to walk
+            raise ValueError(f"{section}.{key} was parsed without its tree (keep_tree=True)")
+        try:
+            results.append(_dimension(parsed.tree, parsed.text, known))
+        except _Mismatch as mismatch:
+            raise fail(section, key, mismatch.problem, EXPECTED_SUM, index=index) from None
+    if form == "coefficients":
+        _check_coefficients(formulas, results, known[variable], variable, fail)
+    elif form == "loop":
+        _check_loop_gain(results[0], results[1], fail)
+    return tuple(p.name for p in parameters if p.name not in known)
+
+
+def _check_coefficients(formulas, results, frequency: Dimension, variable: str, fail: Fail) -> None:
+    """a_k * s^k: one dimension over the whole list (the coefficients are a sum's terms)."""
+    n = len(formulas) - 1
+    terms = []
+    for (_, _, index, parsed), dimension in zip(formulas, results, strict=True):
+        k = n - index
+        term = f"({parsed.text})" if parsed.tree.kind == "sum" else parsed.text
+        term += "" if k == 0 else f"*{variable}" if k == 1 else f"*{variable}^{k}"
+        terms.append((None if dimension is None else dimension * frequency**k, term))
+    try:
+        _common(terms)
+    except _Mismatch as mismatch:
+        section, key, index, _ = formulas[mismatch.position]
+        raise fail(section, key, mismatch.problem, EXPECTED_SUM, index=index) from None
+
+
+def _check_loop_gain(plant: Dimension, controller: Dimension, fail: Fail) -> None:
+    """1 + P*C adds the loop gain to 1: P*C must be dimensionless."""
+    if plant is None or controller is None or not plant * controller:
+        return
+    raise fail("polynomial.loop", None,
+               f"the loop gain P*C has dimension {describe(plant * controller)} (plant "
+               f"{describe(plant)}, controller {describe(controller)}), but 1 + P*C adds it to 1",
+               "a dimensionless loop gain (e.g. a plant in V/A with a controller in A/V)")

@@ -1,0 +1,220 @@
+"""Tests for robust.model.units: the dimension check of a case's formulas.
+
+References outside the project: pint's own unit registry gives the dimensionality of derived
+units (pint documentation, dimensionality); that R*C and L/R are times and 1/sqrt(L*C) a
+frequency is common practice, no source. The new shipped case's polynomial is rebuilt with
+sympy from its circuit in tests/test_case.py.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pint
+import pytest
+from click.testing import CliRunner
+from hypothesis import given
+from hypothesis import strategies as st
+
+from robust.cli import main
+from robust.errors import CaseError
+from robust.model.case import parse_case
+from robust.model.expr import parse_formula
+from robust.model.units import describe, unit_dimension
+
+CASES_DIR = Path(__file__).resolve().parent.parent / "cases"
+UREG = pint.UnitRegistry()
+
+RLC = {"R": ("10", "ohm"), "L": ("1m", "H"), "C": ("10u", "F")}
+
+
+def case_text(parameters: dict[str, tuple[str, str]], polynomial: str) -> str:
+    """A case with parameters {name: (nominal, unit)} (5 % each) and a [polynomial] body."""
+    lines = ['title = "t"']
+    for name, (nominal, unit) in parameters.items():
+        lines += [f"[parameters.{name}]", f"nominal = {json.dumps(nominal)}", 'tolerance = "5%"']
+        if unit:
+            lines.append(f"unit = {json.dumps(unit)}")
+    return "\n".join(lines) + "\n" + polynomial + "\n"
+
+
+def error_of(parameters: dict[str, tuple[str, str]], polynomial: str) -> str:
+    with pytest.raises(CaseError) as caught:
+        parse_case(case_text(parameters, polynomial), "u.toml")
+    message = str(caught.value)
+    assert "\n" not in message
+    return message
+
+
+# -- cases that pass ------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("polynomial", [
+    '[polynomial]\nexpression = "L*C*s^2 + R*C*s + 1"',
+    '[polynomial]\nexpression = "s^2 + R/L*s + 1/(L*C)"',
+    '[polynomial]\ncoefficients = ["L*C", "R*C", "1"]',
+    '[polynomial]\ncoefficients = ["L", "R", "1/C"]',
+    '[polynomial.loop]\nplant = "1/(L*C*s^2 + R*C*s)"\ncontroller = "2"',
+])
+def test_a_correct_rlc_case_passes_in_every_form(polynomial):
+    """A series RLC loop written right, as an expression, a coefficient list or a loop, loads
+    with no note (every parameter has a unit)."""
+    case = parse_case(case_text(RLC, polynomial), "rlc.toml")
+    assert case.notes == ()
+    assert case.family.degree == 2
+
+
+def test_a_transfer_function_may_carry_a_dimension_when_the_loop_gain_has_none():
+    """An admittance plant (A/V) times an impedance controller (V/A) is a valid loop."""
+    parameters = {**RLC, "Rs": ("1", "ohm")}
+    case = parse_case(case_text(parameters, '[polynomial.loop]\nplant = "1/(L*s + R)"\n'
+                                            'controller = "Rs*(R*C*s + 1)/(R*C*s)"'), "y.toml")
+    assert case.family.degree == 2
+
+
+def test_written_numbers_and_unchecked_parameters_are_not_compared():
+    """0.025*s + 1 writes a time constant as a number, and K has no unit: neither is compared,
+    and the case notes K once."""
+    case = parse_case(case_text({**RLC, "K": ("3", "")},
+                                '[polynomial]\nexpression = "(0.025*s + 1)*(L*s + R) + K*s + 600"'),
+                      "n.toml")
+    assert case.notes == ("n.toml: parameters without a unit, so the terms holding them are not "
+                          "checked for dimension: K",)
+
+
+def test_a_case_without_units_is_not_checked_and_keeps_no_tree():
+    """Without any unit nothing is checked (R*s + L would pass) and no formula keeps its tree."""
+    case = parse_case(case_text({"R": ("1", ""), "L": ("1", "")}, '[polynomial]\nexpression = "R*s + L"'))
+    assert case.notes == ()
+    assert parse_formula("R*s + L", ["R", "L"]).tree is None
+
+
+# -- each kind of mismatch ------------------------------------------------------------------
+
+
+def test_a_sum_of_an_expression_adding_unlike_terms_is_named_with_both_dimensions():
+    """R*C*s^2 + L*s: a pure frequency against a resistance."""
+    message = error_of(RLC, '[polynomial]\nexpression = "R*C*s^2 + L*s + R"')
+    assert message == ("u.toml:15: polynomial.expression: R*C*s^2 has dimension [1/time], L*s has "
+                       "[resistance]; expected terms of one dimension in every sum")
+
+
+def test_a_nested_sum_is_checked_too():
+    """(R + L)*s: the sum inside the parentheses adds a resistance to an inductance."""
+    message = error_of(RLC, '[polynomial]\nexpression = "(R + L)*C*s + 1"')
+    assert "polynomial.expression: R has dimension [resistance], L has [inductance]" in message
+
+
+def test_a_coefficient_list_compares_a_k_times_s_to_the_k():
+    """[L*C, R, 1]: L*C*s^2 is dimensionless, R*s a resistance per second (1/capacitance);
+    the later entry is named."""
+    message = error_of(RLC, '[polynomial]\ncoefficients = ["L*C", "R", "1"]')
+    assert message == ("u.toml:15: polynomial.coefficients[1]: L*C*s^2 is dimensionless, R*s has "
+                       "[1/capacitance]; expected terms of one dimension in every sum")
+
+
+def test_a_sum_inside_one_coefficient_is_named_with_its_index():
+    """coefficients[2] = C + R: a capacitance plus a resistance."""
+    message = error_of(RLC, '[polynomial]\ncoefficients = ["L*C", "R*C", "C + R"]')
+    assert "polynomial.coefficients[2]: C has dimension [capacitance], R has [resistance]" in message
+
+
+def test_a_loop_numerator_and_a_loop_denominator_are_each_checked():
+    """Plant numerator R + L and controller denominator C*s + R each add unlike terms."""
+    numerator = error_of(RLC, '[polynomial.loop]\nplant = "(R + L)/(L*s + R)"')
+    assert "polynomial.loop.plant: R has dimension [resistance], L has [inductance]" in numerator
+    denominator = error_of(RLC, '[polynomial.loop]\nplant = "1/(L*s + R)"\ncontroller = "R/(C*s + R)"')
+    assert ("polynomial.loop.controller: C*s has dimension [1/resistance], R has [resistance]"
+            in denominator)
+
+
+def test_a_loop_gain_with_a_dimension_is_refused():
+    """P = 1/(L*s + R) in A/V with a dimensionless controller: 1 + P*C adds siemens to 1."""
+    message = error_of(RLC, '[polynomial.loop]\nplant = "1/(L*s + R)"\ncontroller = "R*C*s + 1"')
+    assert message == ("u.toml:14: polynomial.loop: the loop gain P*C has dimension [1/resistance] "
+                       "(plant [1/resistance], controller dimensionless), but 1 + P*C adds it to 1; "
+                       "expected a dimensionless loop gain (e.g. a plant in V/A with a controller in A/V)")
+
+
+@pytest.mark.parametrize("unit, problem", [
+    ("Henri", "'Henri' is not a unit pint knows"),
+    ("4.7 uF", "holds a number"),
+    ("m^9^9", "not a small integer"),
+    ("ohm; rm", "is not a unit"),
+    ("(ohm", "is not a unit pint can read"),
+])
+def test_a_unit_pint_cannot_read_names_the_unit_field_and_its_text(unit, problem):
+    """The error names parameters.L.unit, the line of the unit and the text."""
+    message = error_of({**RLC, "L": ("1m", unit)}, '[polynomial]\nexpression = "L*C*s^2 + R*C*s + 1"')
+    assert message.startswith("u.toml:9: parameters.L.unit: ")
+    assert problem in message and 'expected a unit such as "ohm"' in message
+
+
+@given(st.text(alphabet="mAVsHFkg*/^()0123 -.%µΩe", max_size=20))
+def test_any_unit_text_gives_a_dimension_or_one_case_error(unit):
+    """Whatever a unit field holds, pint's answer is a dimension or one CaseError, never
+    another exception."""
+    text = case_text({**RLC, "L": ("1m", unit)}, '[polynomial]\nexpression = "L*C*s^2 + R*C*s + 1"')
+    try:
+        parse_case(text, "u.toml")
+    except CaseError as error:
+        assert "\n" not in str(error)
+
+
+# -- the shipped case through the command line ----------------------------------------------
+
+
+def test_an_inductor_given_in_farads_in_the_shipped_converter_is_one_error_line(tmp_path):
+    """cases/converter_units.toml with L in F: robust check exits 2 with one line naming the
+    plant's sum that no longer adds like terms."""
+    text = (CASES_DIR / "converter_units.toml").read_text(encoding="utf-8")
+    wrong = text.replace('[parameters.L]\nnominal = "10u"\ntolerance = "20%"\nunit = "H"',
+                         '[parameters.L]\nnominal = "10u"\ntolerance = "20%"\nunit = "F"')
+    assert wrong != text
+    path = tmp_path / "converter.toml"
+    path.write_text(wrong, encoding="utf-8")
+    result = CliRunner().invoke(main, ["check", str(path)])
+    assert result.exit_code == 2
+    assert result.stdout == ""
+    message = result.stderr.strip()
+    assert "\n" not in message and "Traceback" not in message
+    assert message.startswith(f"robust: error: {path}:")
+    assert ": polynomial.loop.plant: " in message and "expected terms of one dimension" in message
+    assert "[capacitance" in message
+
+
+def test_the_shipped_converter_is_fully_checked():
+    """Every parameter of cases/converter_units.toml has a unit, so no note is said."""
+    result = CliRunner().invoke(main, ["check", str(CASES_DIR / "converter_units.toml")])
+    assert result.exit_code == 0
+    assert "note" not in result.stderr
+
+
+# -- outside checks ---------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("unit, reference", [
+    ("ohm", "volt / ampere"), ("F", "coulomb / volt"), ("H", "weber / ampere"),
+    ("N*m/A", "volt * second"), ("W/V", "ampere"), ("rad/s", "hertz"),
+])
+def test_unit_dimensions_are_pints(unit, reference):
+    """Derived units have the dimensionality pint's registry gives their definitions (pint
+    documentation, dimensionality)."""
+    assert unit_dimension(unit) == UREG.parse_units(reference).dimensionality
+
+
+def test_time_constants_and_resonance_of_the_trade():
+    """R*C and L/R are times and 1/sqrt(L*C) a frequency (common practice, no source): the
+    walker agrees through the sums those facts allow."""
+    parameters = {**RLC}
+    # R*C*s and L/R*s are pure numbers, so each adds to 1; L*C*s^2 is too (the square of
+    # s/w0 with w0 = 1/sqrt(L*C))
+    for formula in ("R*C*s + 1", "L/R*s + 1", "L*C*s^2 + 1"):
+        case = parse_case(case_text(parameters, f'[polynomial]\nexpression = "{formula}"'))
+        assert case.notes == ()
+    time = UREG.parse_units("s").dimensionality
+    assert unit_dimension("ohm") * unit_dimension("F") == time
+    assert unit_dimension("H") / unit_dimension("ohm") == time
+    assert (unit_dimension("H") * unit_dimension("F")) ** -1 == unit_dimension("Hz") ** 2
+    assert describe(unit_dimension("ohm") * unit_dimension("F")) == "[time]"
