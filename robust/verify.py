@@ -187,6 +187,8 @@ def _same_case(data: dict, case):
     high = [_number(box[n][1], f"box {n}") for n in names]
     scale = data.get("scale")
     rho = Fraction(1) if scale is None else _number(scale, "scale")
+    if rho < 0:  # a negative scale would mirror the box about nominal
+        raise _Invalid(f"the scale {rho} is negative")
     for i, n in enumerate(names):
         nominal, lo, hi = family.nominal[i], family.box.low[i], family.box.high[i]
         if (low[i], high[i]) != (nominal - rho * (nominal - lo), nominal + rho * (hi - nominal)):

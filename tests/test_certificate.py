@@ -347,6 +347,20 @@ def test_a_malformed_box_is_invalid_not_a_crash(certified):
     assert not verify_certificate(bad, case).valid
 
 
+def test_a_negative_scale_is_refused_as_such(certified):
+    """A scale of -1 with the box mirrored about nominal is refused for its sign, not by chance
+    (every box(rho) in a certificate has rho >= 0: a scale of every half-width)."""
+    case, data = certified
+    bad = copy.deepcopy(data)
+    bad["scale"] = "-1"
+    family = case.family
+    for name, nominal, low, high in zip(family.names, family.nominal, family.box.low, family.box.high,
+                                        strict=True):
+        bad["box"][name] = [str(nominal + (nominal - low)), str(nominal - (high - nominal))]
+    result = verify_certificate(bad, case)
+    assert not result.valid and "negative" in result.failed["reason"]
+
+
 def test_a_bernstein_piece_above_the_degree_limit_is_refused_before_expanding(tmp_path):
     """A forged Bernstein piece for a degree-16 family would make the checker expand a generic
     Hurwitz determinant of 441,145 terms; it is refused at once (the engine writes none)."""
