@@ -25,7 +25,7 @@ from __future__ import annotations
 
 import math
 import time
-from collections.abc import Callable, Sequence
+from collections.abc import Callable
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
@@ -46,7 +46,7 @@ from .progress import tell
 from .verdict import Witness, decide
 
 __all__ = ["CRITERIA", "MEASURE_OF_REQUIREMENT", "Criterion", "Measure", "criteria_for", "decide_criterion",
-           "for_requirements", "measure_criterion"]
+           "measure_criterion"]
 
 _REL = Fraction(1, 10**12)
 
@@ -270,13 +270,6 @@ class Criterion:
             return ""
         return ", ".join(f"{n} = {v:.6g}" if isinstance(v, float) else f"{n} = {v}" for n, v in limited.items())
 
-    @property
-    def high(self) -> float | None:
-        m, b = self.measure, self.bracket
-        if self.stable is not True:
-            return None if m.smaller_is_better or self.stable is None else 0.0
-        return m.shown(b.lower, +1) if m.smaller_is_better else m.shown(b.upper, +1)
-
     def as_dict(self) -> dict[str, object]:
         """JSON: lower and upper in the unit, rounded outwards; limited_by; the search
         variable's exact bracket; the requirement's outcome."""
@@ -414,13 +407,3 @@ def _with_requirement(family: UncertainPolynomial, measure: Measure, bracket: Br
         elif verdict is Verdict.UNSTABLE and (bracket.upper is None or bracket.upper > lenient):
             bracket = replace(bracket, upper=lenient, witness=witness)
     return Criterion(measure, bracket, required, outcome, stable=stable)
-
-
-def for_requirements(requirements: object) -> Sequence[tuple[Measure, Fraction]]:
-    """(measure, value) for every criterion of :data:`CRITERIA` a case's requirements ask."""
-    out = []
-    for measure in CRITERIA.values():
-        value = getattr(requirements, REQUIREMENT_OF[measure.name], None)
-        if value is not None:
-            out.append((measure, value))
-    return out
