@@ -253,8 +253,7 @@ def make_witness(family: UncertainPolynomial, point: Sequence[Fraction], found_b
     if not box.contains(point):
         return None
     coeffs = family.coefficients_at(point)
-    # in z the image loses its degree (the written one kept) only for a root at z = -radius
-    on_circle = bool(family.source) and coeffs[0] == 0 and family.written_at(point)[0] != 0
+    on_circle = family.on_circle_at(point)  # a root at z = -radius
     if not on_circle and (all(c == 0 for c in coeffs) or is_hurwitz(coeffs) or coeffs[0] == 0):
         return None  # stable, or a degree drop (not a witness by itself)
     # the polynomial as the user wrote it (in z for discrete time), with counts in their terms

@@ -181,6 +181,12 @@ class UncertainPolynomial:
         """Exact coefficients of the polynomial in the user's variable at a point."""
         return tuple(c.evaluate(point) for c in self.written)
 
+    def on_circle_at(self, point: Sequence[Fraction]) -> bool:
+        """Discrete time: the Hurwitz form loses its degree at the point while the written
+        polynomial keeps it, which happens only for a root at z = -radius (on the circle, so
+        not inside it: the point fails)."""
+        return bool(self.source) and self.coefficients[0].evaluate(point) == 0 and self.written_at(point)[0] != 0
+
     def counts_at(self, point: Sequence[Fraction]):
         """Exact root counts at a point, in the user's terms: inside, on and outside the
         circle for a discrete-time family (its leading coefficient non-zero there), left of,
