@@ -7,7 +7,7 @@ Run from the project root after any change to a command, its options or its help
 ``tests/test_docs.py`` regenerates the text in memory and fails when the checked-in file
 differs, so the reference cannot go stale. The help text comes from click itself; the exit
 codes and JSON keys below are written here, next to the commands they describe, and must
-be kept in step with ``robust/cli.py`` and DESIGN.md section 5.
+be kept in step with the ``robust/cli`` package and DESIGN.md section 5.
 """
 
 from __future__ import annotations
