@@ -136,6 +136,22 @@ def _two_mass():
     return p, nominal
 
 
+def _cascaded_drive():
+    """Closed loop by loop, innermost first (derived here, not from the file's equations):
+    back-EMF: i/v = (J s + B)/Dm, Dm = (L s + R)(J s + B) + Kt^2; current PI Ci = (5 s + 2400)/s:
+    w/ir = Kt (5 s + 2400)/Dc, Dc = s Dm + (5 s + 2400)(J s + B); speed PI (Kpw s + 8)/s with
+    the filter 1/(Tw s + 1): Dw = s Dc (Tw s + 1) + (Kpw s + 8) Kt (5 s + 2400); position
+    th = w/s with gain Kpp: p = s Dw + Kpp (Kpw s + 8) Kt (5 s + 2400)(Tw s + 1)."""
+    R, L, Kt, J, B, Tw, Kpw, Kpp = sp.symbols("R L Kt J B Tw Kpw Kpp")
+    dm = (L * S + R) * (J * S + B) + Kt**2
+    dc = S * dm + (5 * S + 2400) * (J * S + B)
+    dw = S * dc * (Tw * S + 1) + (Kpw * S + 8) * Kt * (5 * S + 2400)
+    p = S * dw + Kpp * (Kpw * S + 8) * Kt * (5 * S + 2400) * (Tw * S + 1)
+    nominal = {R: Q("1.2"), L: Q("2.5e-3"), Kt: Q("80e-3"), J: Q("60e-6"), B: Q("10e-6"),
+               Tw: Q("0.5e-3"), Kpw: Q("0.2"), Kpp: 30}
+    return p, nominal
+
+
 def _converter_units():
     """From the circuit's impedances (the header's derivation), not from the file's formulas."""
     Vin, Vm, L, rL, C, rc, Rl, R1, R2, C1, C2 = sp.symbols("Vin Vm L rL C rc R R1 R2 C1 C2")
@@ -165,6 +181,7 @@ EXPECTED = {
     "servo_pid": ("stable", _servo),
     "thermal_pi_affine": ("stable", _thermal),
     "two_mass_mechanism": ("stable", _two_mass),
+    "cascaded_motor_drive": ("stable", _cascaded_drive),
 }
 # Cases written as one expression or coefficient list with integer constants: the family's
 # coefficients are the written ones exactly (no constant factor cleared).

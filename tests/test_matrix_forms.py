@@ -227,7 +227,7 @@ BAD = [
     ("entry_formula", '[polynomial.mechanical]\nM = [["m", 0], [0, "m"]]\nK = [["k", 0], [0, "k +"]]',
      "polynomial.mechanical.K[1][1]", 10, "formula ends too early"),
     ("two_forms", f'[polynomial]\nexpression = "s + k"\n[polynomial.state_space]\n{SQUARE}', "polynomial", 8,
-     "give exactly one of expression, coefficients, loop, state_space and mechanical"),
+     "give exactly one of expression, coefficients, loop, state_space, mechanical and diagram"),
     ("unknown_key", '[polynomial.state_space]\na = [["-k"]]', "polynomial.state_space.a", 9,
      "unknown key (did you mean A?)"),
     ("unknown_key_mechanical", '[polynomial.mechanical]\nM = [["m"]]\nK = [["k"]]\nDamping = [["1"]]',

@@ -64,7 +64,7 @@ def _case_data(title: object, parameters: object, expression: object, coefficien
         if controller is not None:
             loop["controller"] = controller
         polynomial["loop"] = _plain(loop, formula=True)
-    for form, tables in matrices.items():  # state_space, mechanical: matrices of formulas
+    for form, tables in matrices.items():  # state_space, mechanical (matrices), diagram (equations)
         if tables is not None:
             polynomial[form] = _plain(tables, formula=True)
     data["polynomial"] = polynomial
@@ -89,7 +89,8 @@ def make_case(title: str, parameters: Mapping[str, Mapping[str, object]], *,
               summary: str = "", sample_time: object = None,
               requirements: Mapping[str, object] | None = None,
               state_space: Mapping[str, object] | None = None,
-              mechanical: Mapping[str, object] | None = None) -> Case:
+              mechanical: Mapping[str, object] | None = None,
+              diagram: Mapping[str, object] | Sequence[str] | None = None) -> Case:
     """Build a case from Python values, exactly as a case file with the same content.
 
     Parameters
@@ -100,12 +101,13 @@ def make_case(title: str, parameters: Mapping[str, Mapping[str, object]], *,
         name -> table with the keys of ``[parameters.NAME]``: ``nominal`` and ``tolerance``
         (or ``range = [low, high]``), optional ``unit``, ``note``, ``distribution``, ``limits``.
         Numbers may be int, float, ``Fraction`` or text (``"4.7u"``, ``"5%"``, ``"2/3"``).
-    expression, coefficients, plant, controller, state_space, mechanical
+    expression, coefficients, plant, controller, state_space, mechanical, diagram
         The polynomial, in exactly one form: the characteristic polynomial; its coefficients,
         highest power first; the loop's plant (and controller, default 1) in unity
         negative feedback; or the matrices of ``[polynomial.state_space]`` (``A``, optional
         ``B``, ``C``, ``K``) or ``[polynomial.mechanical]`` (``M``, ``C``, ``K``), as lists of
-        rows of formulas.
+        rows of formulas; or a block diagram: its equations (``["e = r - y", "y = K/s*e"]``),
+        or the keys of ``[polynomial.diagram]`` (``equations``, optional ``inputs``).
     variable, summary, sample_time, requirements
         As in a case file (``requirements`` holds the keys of ``[requirements]``).
 
@@ -128,6 +130,7 @@ def make_case(title: str, parameters: Mapping[str, Mapping[str, object]], *,
     """
     data = _case_data(title, parameters, expression, coefficients, plant, controller, variable,
                       summary, sample_time, requirements,
-                      {"state_space": state_space, "mechanical": mechanical})
+                      {"state_space": state_space, "mechanical": mechanical,
+                       "diagram": {"equations": diagram} if isinstance(diagram, list | tuple) else diagram})
     case = case_from_data(data, PYTHON_PATH, "")  # checked before anything is serialised
     return dataclasses.replace(case, sha256=hashlib.sha256(canonical_text(data).encode("utf-8")).hexdigest())

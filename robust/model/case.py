@@ -24,13 +24,14 @@ from .display import HtmlDisplay
 from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, ParsedFormula, new_work, parse_formula
 from .family import Box, UncertainPolynomial, build_family, discrete_family
 from .forms import closed_loop, coefficients_polynomial, expression_polynomial, loop_parts
+from .diagram import Diagram, diagram_polynomial
 from .matrices import FORMS as MATRIX_FORMS
 from .matrices import matrix_polynomial
 
 __all__ = ["Case", "Parameter", "Requirements", "case_from_data", "load_case", "parse_case"]
 
 _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
-FORMS = ("expression", "coefficients", "loop", *MATRIX_FORMS)
+FORMS = ("expression", "coefficients", "loop", *MATRIX_FORMS, "diagram")
 _MAX_PARAMETERS = 64
 #: Largest case file read, in bytes (checked before reading).
 MAX_FILE = 1_000_000
@@ -92,7 +93,7 @@ class Case(HtmlDisplay):
     summary: str
     variable: str
     parameters: tuple[Parameter, ...]
-    form: str  # "expression" | "coefficients" | "loop" | "state_space" | "mechanical"
+    form: str  # "expression" | "coefficients" | "loop" | "state_space" | "mechanical" | "diagram"
     formulas: tuple[tuple[str, str], ...]  # (field, text) as written
     family: UncertainPolynomial
     requirements: Requirements
@@ -102,6 +103,8 @@ class Case(HtmlDisplay):
     notes: tuple[str, ...] = ()
     #: The sample time in seconds of a discrete-time case (variable = "z"), when given.
     sample_time: Fraction | None = None
+    #: The block diagram the polynomial was formed from (form "diagram"), for trace and report.
+    diagram: Diagram | None = None
 
     @property
     def discrete(self) -> bool:
@@ -112,6 +115,12 @@ class Case(HtmlDisplay):
     def names(self) -> tuple[str, ...]:
         """Parameter names in family order."""
         return self.family.names
+
+    @property
+    def written(self) -> str:
+        """The polynomial as written, one ``field = text`` line per formula (an equation of
+        a diagram, whose field is empty, on its own line)."""
+        return "\n".join(f"{field} = {text}" if field else f"  {text}" for field, text in self.formulas)
 
     def parameter(self, name: str) -> Parameter:
         """The parameter called ``name``."""
@@ -415,17 +424,18 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
     for key in poly:
         if key not in FORMS:
             raise reader.error("polynomial", key, "unknown key" + did_you_mean(key, FORMS),
-                               "expression, coefficients, loop, state_space or mechanical")
+                               "expression, coefficients, loop, state_space, mechanical or diagram")
     if len(forms) != 1:
         raise reader.error("polynomial", None,
-                           f"give exactly one of expression, coefficients, loop, state_space and "
-                           f"mechanical (got {' and '.join(forms)})" if forms else "no polynomial given",
+                           f"give exactly one of expression, coefficients, loop, state_space, "
+                           f"mechanical and diagram (got {' and '.join(forms)})" if forms else "no polynomial given",
                            "expression = \"...\", coefficients = [...], [polynomial.loop], "
-                           "[polynomial.state_space] or [polynomial.mechanical]")
+                           "[polynomial.state_space], [polynomial.mechanical] or [polynomial.diagram]")
     form = forms[0]
     _check_total_length(reader, form, poly[form])
     formulas: list[tuple[str, str]] = []
     parts = None  # the loop's (den_P den_C, num_P num_C)
+    diagram = None
     work = new_work()  # one account for every formula of the case and for combining them
     units = any(p.unit.strip() for p in parameters)  # then each formula keeps its tree
     read: list[tuple[str, str, int | None, ParsedFormula]] = []  # for the dimension check
@@ -456,6 +466,12 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
                 reader, form, poly[form], variable, work, lambda key, text, index: _formula(
                     reader, section, key, text, names, variable, False, work, index))
             formulas += written
+        elif form == "diagram":
+            (numerator, denominator), written, diagram, sides = diagram_polynomial(
+                reader, poly["diagram"], names, variable, work, lambda i, text, known: _formula(
+                    reader, "polynomial.diagram", "equations", text, known, variable, False, work, i, units))
+            formulas += written
+            read += [("polynomial.diagram", "equations", i, side) for i, side in enumerate(sides)]
         else:
             loop = poly["loop"]
             if not isinstance(loop, dict) or set(loop) - {"plant", "controller"} or "plant" not in loop:
@@ -503,7 +519,7 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
         family = discrete_family(family)
     requirements = _requirements(reader, data.get("requirements", {}), variable == "z", bool(family.loop))
     return Case(path, title.strip(), summary.strip(), variable, parameters, form,
-                tuple(formulas), family, requirements, sha256, tuple(reader.notes), sample_time)
+                tuple(formulas), family, requirements, sha256, tuple(reader.notes), sample_time, diagram)
 
 
 def _with_loop(family: UncertainPolynomial, parts: tuple[dict, dict], slots: int) -> UncertainPolynomial:

@@ -36,9 +36,11 @@ __all__ = [
     "MAX_WORK",
     "Node",
     "ParsedFormula",
+    "names_in",
     "new_work",
     "parse_formula",
     "polynomial_coefficients",
+    "sympy_of",
 ]
 
 MAX_LENGTH = 20_000
@@ -126,12 +128,12 @@ class ParsedFormula:
     @property
     def numerator(self):
         """The numerator as a sympy expression (for inspection and tests)."""
-        return _to_sympy(self.expanded_numerator, self.slots)
+        return sympy_of(self.expanded_numerator, self.slots)
 
     @property
     def denominator(self):
         """The denominator as a sympy expression."""
-        return _to_sympy(self.expanded_denominator, self.slots)
+        return sympy_of(self.expanded_denominator, self.slots)
 
     @property
     def expression(self):
@@ -140,7 +142,9 @@ class ParsedFormula:
         return self.numerator if den == 1 else self.numerator / den
 
 
-def _to_sympy(poly: Mapping, slots: Sequence[str]):
+def sympy_of(poly: Mapping, slots: Sequence[str]):
+    """A sparse polynomial over ``slots`` as a sympy expression, only to show it (each name
+    becomes a sympy Symbol; no text is read)."""
     import sympy as sp  # only to show a formula; reading one never needs sympy
 
     symbols = [sp.Symbol(n) if n else sp.Integer(1) for n in slots]
@@ -568,6 +572,27 @@ def parse_formula(
     return ParsedFormula(text, tuple(sorted(parser.used)), (variable or "", *declared),
                          MappingProxyType(value.num), MappingProxyType(value.den),
                          parser.nodes[0] if parser.nodes else None)
+
+
+def names_in(text: str) -> tuple[str, ...]:
+    """The names a formula writes, each once, in the order they first appear (numbers such
+    as ``4.7e-3`` hold no name).
+
+    Raises
+    ------
+    FormulaError
+        For a character that is not part of a formula.
+
+    Examples
+    --------
+    >>> names_in("(Kp + Ki/s)*e - 4.7e-3*e")
+    ('Kp', 'Ki', 's', 'e')
+    """
+    if not isinstance(text, str):
+        raise FormulaError(str(text), 1, "a formula must be text", "a string")
+    if len(text) > MAX_LENGTH:
+        raise FormulaError(text, MAX_LENGTH, "formula too long", f"at most {MAX_LENGTH} characters")
+    return tuple(dict.fromkeys(t.text for t in _tokenize(text) if t.kind == "name"))
 
 
 def polynomial_coefficients(text: str, variable: str = "s") -> list[Fraction]:

@@ -24,15 +24,27 @@ from ..exact.regions import DiskCounts, SchurCohnTable, disk_counts, schur_cohn_
 from ..exact.routh import RouthTable
 from .expr import ParsedFormula, polynomial_coefficients
 
-__all__ = ["DiscreteTable", "as_coefficients", "closed_loop", "coefficients_polynomial", "discrete_table",
-           "expression_polynomial", "loop_parts", "mechanical_polynomial", "over_common_denominator",
-           "routh_table", "state_space_polynomial"]
+__all__ = [
+    "DiscreteTable",
+    "as_coefficients",
+    "closed_loop",
+    "coefficients_polynomial",
+    "discrete_table",
+    "expression_polynomial",
+    "interconnection_polynomial",
+    "loop_parts",
+    "mechanical_polynomial",
+    "over_common_denominator",
+    "routh_table",
+    "state_space_polynomial",
+    "written_quotient",
+]
 
 Quotient = tuple[dict, dict]  # sparse numerator, sparse denominator
 Matrix = Sequence[Sequence[ParsedFormula]]  # rows of entries
 
 
-def _written(parsed: ParsedFormula) -> Quotient:
+def written_quotient(parsed: ParsedFormula) -> Quotient:
     """The formula's quotient as written, a constant denominator made positive."""
     num, den = dict(parsed.expanded_numerator), dict(parsed.expanded_denominator)
     if set(den) == {0} and den[0] < 0:
@@ -57,7 +69,7 @@ def _lowest_terms(quotient: Quotient) -> Quotient:
 
 def expression_polynomial(parsed: ParsedFormula) -> Quotient:
     """The characteristic polynomial written as one expression."""
-    return _lowest_terms(_written(parsed))
+    return _lowest_terms(written_quotient(parsed))
 
 
 def over_common_denominator(quotients: Sequence[Quotient], work: sparse.Work) -> tuple[list[dict], dict]:
@@ -88,7 +100,7 @@ def over_common_denominator(quotients: Sequence[Quotient], work: sparse.Work) ->
 def coefficients_polynomial(items: Sequence[ParsedFormula], work: sparse.Work) -> Quotient:
     """sum of c_i * s^(n - i) over the common denominator of the c_i
     (:func:`over_common_denominator`)."""
-    numerators, common = over_common_denominator([_written(p) for p in items], work)
+    numerators, common = over_common_denominator([written_quotient(p) for p in items], work)
     n = len(items) - 1
     total: dict = {}
     for i, term in enumerate(numerators):
@@ -104,8 +116,8 @@ def _times_variable(p: dict, power: int) -> dict:
 def loop_parts(plant: ParsedFormula, controller: ParsedFormula, work: sparse.Work) -> tuple[dict, dict]:
     """(den_P * den_C, num_P * num_C): the loop's open-loop denominator and numerator, as
     written (a pole-zero cancellation inside a formula must not hide a mode of the loop)."""
-    n_p, d_p = _written(plant)
-    n_c, d_c = _written(controller)
+    n_p, d_p = written_quotient(plant)
+    n_c, d_c = written_quotient(controller)
     return sparse.multiply(d_p, d_c, work), sparse.multiply(n_p, n_c, work)
 
 
@@ -121,13 +133,13 @@ def state_space_polynomial(a: Matrix, b: Matrix | None, k: Matrix | None, work: 
     denominator of its entries, and the determinant of those rows divided by their product."""
     n = len(a)
     if k is not None and b is not None:
-        numerators, k_common = over_common_denominator([_written(f) for row in k for f in row], work)
+        numerators, k_common = over_common_denominator([written_quotient(f) for row in k for f in row], work)
         k_rows = [numerators[r * n:(r + 1) * n] for r in range(len(k))]
     rows, commons = [], []
     for i in range(n):
-        quotients = [_negated(_written(f)) for f in a[i]]
+        quotients = [_negated(written_quotient(f)) for f in a[i]]
         if k is not None and b is not None:
-            b_row, b_common = over_common_denominator([_written(f) for f in b[i]], work)
+            b_row, b_common = over_common_denominator([written_quotient(f) for f in b[i]], work)
             below = sparse.multiply(b_common, k_common, work)
             for j in range(n):
                 entry: dict = {}
@@ -152,13 +164,37 @@ def mechanical_polynomial(mass: Matrix, damping: Matrix | None, stiffness: Matri
     rows, commons = [], []
     for i in range(n):
         parts = [mass[i], stiffness[i]] + ([damping[i]] if damping is not None else [])
-        numerators, common = over_common_denominator([_written(f) for part in parts for f in part], work)
+        quotients = [written_quotient(f) for part in parts for f in part]
+        numerators, common = over_common_denominator(quotients, work)
         row = [sparse.add(_times_variable(numerators[j], 2), numerators[n + j]) for j in range(n)]
         if damping is not None:
             row = [sparse.add(row[j], _times_variable(numerators[2 * n + j], 1)) for j in range(n)]
         rows.append(row)
         commons.append(common)
     return _determinant_over(rows, commons, work)
+
+
+def interconnection_polynomial(rows: Sequence[tuple[Sequence[dict], dict]], work: sparse.Work) -> Quotient:
+    """det(D_i x_i - sum_j n_ij x_j): the characteristic polynomial of signals x_i = sum_j
+    (n_ij / D_i) x_j, one equation per row with its gains over one denominator D_i as written.
+
+    Row i is its equation times D_i, so the determinant is D_1 ... D_n det(I - G): every
+    block's denominator times the determinant of the interconnection, with no cancellation
+    between them (for one loop, e = -y, u = C e, y = P u, it is den_P den_C + num_P num_C).
+
+    Parameters
+    ----------
+    rows
+        ``([n_i1, ..., n_in], D_i)`` per equation, sparse polynomials in the variable and the
+        parameters; the signals are the equations' own, in order (inputs are left out: they
+        do not change the determinant).
+    """
+    matrix = []
+    for i, (gains, den) in enumerate(rows):
+        row = [sparse.negate(g) for g in gains]
+        row[i] = sparse.add(den, row[i])
+        matrix.append(row)
+    return _lowest_terms((determinant(matrix, work), sparse.constant(1)))
 
 
 def _negated(quotient: Quotient) -> Quotient:

@@ -139,7 +139,7 @@ def _polynomial(analysis: Analysis) -> Section:
     case = analysis.case
     family = case.family
     graph = build_graph(family)
-    written = "\n".join(f"{field} = {text}" for field, text in case.formulas)
+    written = case.written
     bounds = family.bounds()
     rows = []
     for k, (formula, b) in enumerate(zip(family.formulas(), bounds, strict=True)):

@@ -27,7 +27,7 @@ def case_section(case: Case) -> Section:
         blocks.append(Paragraph((case.summary,)))
     blocks.append(Paragraph(("Case: ", Code(case.path), f"; {case.sha256[:12]}… (SHA-256)"), "note"))
     blocks.append(parameters_section(case))
-    written = "\n".join(f"{field} = {text}" for field, text in case.formulas)
+    written = case.written
     blocks.append(Section("Polynomial", (
         Paragraph((f"As written (variable {case.variable}); degree {case.family.degree}, "
                    f"family class {case.family.kind}:",)),

@@ -202,8 +202,11 @@ def _trace(case, graph) -> tuple[dict, tuple]:
             from ..model.graph import drivers
 
             vertices[node[1]] = {name: dirs for name, dirs in drivers(graph, node[1]).items()}
-    return ({"family_class": fam.kind, "degree": fam.degree, "parameters": list(fam.names),
-             "coefficients": coefficients, "vertices": vertices}, bounds)
+    data = {"family_class": fam.kind, "degree": fam.degree, "parameters": list(fam.names),
+            "coefficients": coefficients, "vertices": vertices}
+    if case.diagram is not None:
+        data["diagram"] = case.diagram.as_dict()
+    return data, bounds
 
 
 def render_trace(case, graph) -> str:
@@ -218,6 +221,8 @@ def render_trace(case, graph) -> str:
                       "w = (z - 1)/(z + 1), that the engine decides; p(z) as written:",
                       "  " + " + ".join(f"({c.to_text(case.family.names)})*z^{len(case.family.written) - 1 - k}"
                                         for k, c in enumerate(case.family.written) if not c.is_zero), ""]
+    if "diagram" in data:
+        lines[-1:] = [*_diagram_lines(data["diagram"]), ""]
     for c, b in zip(data["coefficients"], bounds, strict=True):
         deps = ", ".join(f"{n} ({d})" for n, d in c["parameters"].items()) or "constant"
         lines.append(f"a{c['power']} ({var}^{c['power']}) = {c['formula']}")
@@ -227,6 +232,23 @@ def render_trace(case, graph) -> str:
     lines.append("Directions: + the coefficient grows with the parameter over the whole box, "
                  "- it falls, mixed: both.")
     return "\n".join(lines)
+
+
+def _diagram_lines(diagram: dict) -> list[str]:
+    """How a block diagram became the polynomial: its equations, signals and loops."""
+    lines = ["", "Formed from a block diagram: the characteristic polynomial is the determinant of the "
+             "interconnection, det(I - G), times the denominator of every equation as written "
+             "(no cancellation between them), so every block's poles are kept.", "Equations:"]
+    lines += [f"  {text}" for text in diagram["equations"]]
+    lines.append("Signals: " + ", ".join(diagram["signals"])
+                 + ("; external inputs: " + ", ".join(diagram["inputs"]) if diagram["inputs"] else ""))
+    if not diagram["loops"]:
+        lines.append("Loops: none (no signal feeds back): the polynomial is the product of the blocks' "
+                     "denominators.")
+    for k, loop in enumerate(diagram["loops"], 1):
+        path = " -> ".join([*loop["signals"], loop["signals"][0]])
+        lines.append(f"Loop {k}: {path}; loop gain {loop['gain']}")
+    return lines
 
 
 def _bracket_text(b) -> str:
