@@ -490,11 +490,12 @@ def allocate(case, classes: Sequence[ToleranceClass], parts: Sequence[str] | Non
     chosen, pruned, exhausted = None, 0, False
     while chosen is None and not exhausted:
         waiting: list[tuple[int, ...]] = []
+        known_pass = None  # a design decided out of turn (the all-tightest) reached in order
         room = min(batch, max_decisions - len(log))
         for design, _cost in order:
-            if design in known:  # decided out of turn (the all-tightest design)
+            if design in known:
                 if known[design].outcome is Outcome.PASS:
-                    chosen = design
+                    known_pass = design
                     break
                 continue
             if ruled_out(design):
@@ -506,11 +507,13 @@ def allocate(case, classes: Sequence[ToleranceClass], parts: Sequence[str] | Non
             waiting.append(design)
             if len(waiting) >= room:
                 break
-        if not waiting:
+        if not waiting and known_pass is None:
             break
-        decide_all(waiting)
-        # the batch holds the next designs in cost order: its first pass is the cheapest one
-        chosen = next((d for d in waiting if known[d].outcome is Outcome.PASS), None)
+        if waiting:
+            decide_all(waiting)
+        # the batch holds the next designs in cost order (all cheaper than a known pass after
+        # them): its first pass is the cheapest one
+        chosen = next((d for d in waiting if known[d].outcome is Outcome.PASS), known_pass)
     written = _written_design(parts_classes)
     written_decision = None
     if written is not None:
