@@ -13,10 +13,12 @@ from click.testing import CliRunner
 from hypothesis import example, given, settings
 from hypothesis import strategies as st
 
-from robust.analysis.allocate import ToleranceClass, allocate, parse_classes
+from robust.analysis.allocate import DesignDecision, ToleranceClass, allocate, decide_design, parse_classes
+from robust.analysis.outcomes import Outcome
 from robust.cli import main
 from robust.errors import InputError
 from robust.model.case import load_case, parse_case
+from robust.render.allocation import render_allocation
 
 CASES = Path(__file__).resolve().parent.parent / "cases"
 
@@ -131,6 +133,30 @@ def test_a_runner_that_maps_in_its_own_way_gives_the_same_result():
     one = allocate(cubic_case("1.25"), classes)
     two = allocate(cubic_case("1.25"), classes, run=reversed_run)
     assert one.as_dict() == two.as_dict()
+
+
+def test_undecided_designs_count_as_not_passing():
+    """A design left undecided (here, made so by the runner, every design with a part at 5 %)
+    does not pass and rules nothing out: the answer is the closed form's optimum among the
+    others, and the output says that cheaper designs were undecided."""
+    def at_five_percent(box) -> bool:
+        return any(box.low[box.names.index(n)] == v * Fraction(95, 100) for n, v in NOMINAL.items())
+
+    def undecided_at_five_percent(function, items):
+        return [DesignDecision(Outcome.OPEN, "stability", None) if at_five_percent(task.family.box)
+                else decide_design(task) for task in items]
+
+    classes = parse_classes("2%:5, 5%:2, 10%:1")
+    result = allocate(cubic_case(), classes, run=undecided_at_five_percent)
+    best = min(sum(c.cost for c in combo) for combo in itertools.product(classes, repeat=3)
+               if all(c.text != "5%" for c in combo)
+               and cubic_passes(dict(zip(NOMINAL, (c.tolerance for c in combo), strict=True))))
+    assert result.cost == best == Fraction(11)
+    # among them the three designs at cost 9 that pass in truth
+    assert result.undecided_cheaper >= 3
+    text = render_allocation(cubic_case(), result)
+    assert "undecided within the work budget: they count as not passing" in text
+    assert f"{result.undecided_cheaper} of them cost less than the chosen design" in text
 
 
 def run(*args: str):
