@@ -159,6 +159,24 @@ def test_undecided_designs_count_as_not_passing():
     assert f"{result.undecided_cheaper} of them cost less than the chosen design" in text
 
 
+def test_designs_travel_to_other_processes():
+    """A runner using processes gets picklable work: a task and its decision survive a
+    pickle round trip and decide the same."""
+    import pickle
+
+    seen = []
+
+    def pickling_run(function, items):
+        out = [pickle.loads(pickle.dumps(function(pickle.loads(pickle.dumps(item))))) for item in items]
+        seen.extend(out)
+        return out
+
+    classes = parse_classes("2%:5, 5%:2, 10%:1")
+    assert allocate(cubic_case("1.25"), classes, run=pickling_run).as_dict() == \
+        allocate(cubic_case("1.25"), classes).as_dict()
+    assert seen and all(d.outcome in (Outcome.PASS, Outcome.FAIL) for d in seen)
+
+
 def run(*args: str):
     return CliRunner().invoke(main, ["allocate", *args])
 
