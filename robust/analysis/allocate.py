@@ -17,7 +17,13 @@ the looser. The search uses that twice:
 * a failure rules out more than itself: a verified witness (a parameter point where the
   check fails) rules out every design whose box contains it, and a proven failure without a
   point (a box past a physical limit) every design looser in every part; such designs are
-  counted as pruned, not decided.
+  counted as pruned, not decided. The witness is first moved towards nominal, part by part,
+  while the exact Routh array still fails there: a point nearer nominal lies in more boxes.
+
+Which parts: those named, else every part whose tolerance is written in percent (a range or
+an absolute tolerance stays as written unless named). A class whose range reaches a part's
+physical limit is not offered to that part; a class that costs no less than a tighter one is
+never chosen (the tighter passes whenever it does) and is dropped as dominated.
 
 The all-tightest design is decided first: when it fails with a witness every design does.
 Decisions run in batches of a fixed size through a ``run`` callable (``run(function,
