@@ -165,6 +165,29 @@ NOTES: dict[str, dict[str, list[str]]] = {
             "draws), `seconds` (the only key that differs between runs)",
         ],
     },
+    "allocate": {
+        "exit": [
+            "0: a passing design was found (the cheapest among those decided)",
+            "1: no design passes, or none was proven to pass within `--max-decisions` (an "
+            "undecided design counts as not passing)",
+            "2: bad input: malformed `--classes`, an unknown part in `--parts` (with the nearest "
+            "name), a part with nominal 0, or a part that no class fits",
+        ],
+        "json": [
+            "`found`, `chosen` (part -> class text, or null), `cost`, `tightest_cost`: exact "
+            "strings such as `\"13/5\"`",
+            '`written`: `{"classes", "cost", "outcome"}` for the tolerances as written, when each '
+            "allocated part's tolerance is a class of the table",
+            '`proof`: the chosen design\'s `verdict`, `method`, `method_text`, `box` and '
+            "`requirements` (name -> outcome)",
+            "`parts`: per allocated part its `classes` (tightest first), `infeasible` (with the "
+            "physical limit reached) and `dominated` classes",
+            "`search`: `candidates`, `decided`, `pruned` (ruled out by a failure without a "
+            "decision), `undecided`, `undecided_cheaper`, `exhausted`, `batch`, `max_decisions`, "
+            "`safety_stop`; `decisions`: every decision in order (`classes`, `cost`, `outcome`, "
+            "`failed`, `witness`)",
+        ],
+    },
     "report": {
         "exit": [
             "0: the report was written, whatever it concludes (read its verdict, or `check` in the JSON)",
