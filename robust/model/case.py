@@ -452,9 +452,14 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
             numerator, denominator = coefficients_polynomial(parsed, work)
         elif form in MATRIX_FORMS:
             section = f"polynomial.{form}"
-            (numerator, denominator), written = matrix_polynomial(
-                reader, form, poly[form], variable, work, lambda key, text, index: _formula(
-                    reader, section, key, text, names, variable, False, work, index))
+
+            def entry(key: str, text: object, index: tuple[int, int]) -> ParsedFormula:
+                read.append((section, key, index, _formula(reader, section, key, text, names, variable,
+                                                            False, work, index, units)))
+                return read[-1][3]
+
+            (numerator, denominator), written = matrix_polynomial(reader, form, poly[form], variable, work,
+                                                                  entry)
             formulas += written
         else:
             loop = poly["loop"]
