@@ -493,7 +493,8 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
     degree = sparse.degree_in(numerator, 0)
     if degree > MAX_DEGREE:
         raise reader.error("polynomial", form, "degree too high", f"degree <= {MAX_DEGREE}", degree)
-    box = Box(names, tuple(p.low for p in parameters), tuple(p.high for p in parameters))
+    box = Box(names, tuple(p.low for p in parameters), tuple(p.high for p in parameters),
+              tuple(p.unit.strip() for p in parameters))
     nominal = tuple(p.nominal for p in parameters)
     slots = 1 + len(names)
     try:
