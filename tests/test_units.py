@@ -165,6 +165,19 @@ def test_any_unit_text_gives_a_dimension_or_one_case_error(unit):
 # -- the shipped case through the command line ----------------------------------------------
 
 
+def run_check(tmp_path, text: str) -> str:
+    """robust check on ``text``: exit 2, nothing on stdout, one error line (returned)."""
+    path = tmp_path / "case.toml"
+    path.write_text(text, encoding="utf-8")
+    result = CliRunner().invoke(main, ["check", str(path)])
+    assert result.exit_code == 2
+    assert result.stdout == ""
+    message = result.stderr.strip()
+    assert "\n" not in message and "Traceback" not in message
+    assert message.startswith(f"robust: error: {path}:")
+    return message
+
+
 def test_an_inductor_given_in_farads_in_the_shipped_converter_is_one_error_line(tmp_path):
     """cases/converter_units.toml with L in F: robust check exits 2 with one line naming the
     plant's sum that no longer adds like terms."""
@@ -172,14 +185,7 @@ def test_an_inductor_given_in_farads_in_the_shipped_converter_is_one_error_line(
     wrong = text.replace('[parameters.L]\nnominal = "10u"\ntolerance = "20%"\nunit = "H"',
                          '[parameters.L]\nnominal = "10u"\ntolerance = "20%"\nunit = "F"')
     assert wrong != text
-    path = tmp_path / "converter.toml"
-    path.write_text(wrong, encoding="utf-8")
-    result = CliRunner().invoke(main, ["check", str(path)])
-    assert result.exit_code == 2
-    assert result.stdout == ""
-    message = result.stderr.strip()
-    assert "\n" not in message and "Traceback" not in message
-    assert message.startswith(f"robust: error: {path}:")
+    message = run_check(tmp_path, wrong)
     assert ": polynomial.loop.plant: " in message and "expected terms of one dimension" in message
     assert "[capacitance" in message
 
@@ -218,3 +224,131 @@ def test_time_constants_and_resonance_of_the_trade():
     assert unit_dimension("H") / unit_dimension("ohm") == time
     assert (unit_dimension("H") * unit_dimension("F")) ** -1 == unit_dimension("Hz") ** 2
     assert describe(unit_dimension("ohm") * unit_dimension("F")) == "[time]"
+
+
+# -- the matrix forms -----------------------------------------------------------------------
+
+MOTOR = {"R": ("2", "ohm"), "L": ("5m", "H"), "Kt": ("50m", "N*m/A"), "J": ("20u", "kg*m^2"),
+         "b": ("1u", "N*m*s/rad")}
+# states: the winding current (A) and the shaft speed (rad/s); input: the winding voltage (V)
+MOTOR_A = '[["-R/L", "-Kt/L"], ["Kt/J", "-b/J"]]'
+
+
+def state_space(a: str, feedback: str = "") -> str:
+    return f"[polynomial.state_space]\nA = {a}\n{feedback}"
+
+
+def test_the_shipped_two_mass_mechanism_loads_fully_checked():
+    """cases/two_mass_mechanism.toml has a unit on every part and passes the entry and pair
+    checks unchanged (0.5*Kt and 20*Kt hold written numbers, so they are not compared)."""
+    case = parse_case((CASES_DIR / "two_mass_mechanism.toml").read_text(encoding="utf-8"), "m.toml")
+    assert case.notes == ()
+
+
+def test_a_stiffness_entered_as_a_damping_in_the_shipped_mechanism_is_one_line(tmp_path):
+    """C[1][1] = ks (N*m/rad) instead of cs: ks*s is a torque per second, J2*s^2 a torque;
+    robust check names the entry, both terms and their dimensions."""
+    text = (CASES_DIR / "two_mass_mechanism.toml").read_text(encoding="utf-8")
+    wrong = text.replace('["-cs", "cs"]]', '["-cs", "ks"]]')
+    assert wrong != text
+    message = run_check(tmp_path, wrong)
+    assert ": polynomial.mechanical.C[1][1]: J2*s^2 (M[1][1]) has dimension [energy], ks*s (C[1][1]) " \
+           "has [power]; expected M*s^2, C*s and K of one dimension at each entry" in message
+
+
+def test_a_load_inertia_in_kg_among_kg_m2_in_the_shipped_mechanism_is_one_line(tmp_path):
+    """J2 given in kg where J1 is in kg*m^2: the load's entry no longer adds like terms."""
+    text = (CASES_DIR / "two_mass_mechanism.toml").read_text(encoding="utf-8")
+    wrong = text.replace('tolerance = "10%"\nunit = "kg*m^2"', 'tolerance = "10%"\nunit = "kg"')
+    assert wrong != text
+    message = run_check(tmp_path, wrong)
+    assert ": polynomial.mechanical.C[1][1]: J2*s^2 (M[1][1]) has dimension [mass/time^2]" in message
+
+
+def test_mechanical_pairs_must_factor_by_row_and_column():
+    """A cart (x, kg) and a rotor (theta, kg*m^2) joined by a spring kc at lever arm r: K is
+    [[k + kc, -kc*r], [-kc*r, kt + kc*r^2]]. With the lever arm forgotten in K[0][1] every
+    entry still adds like terms, but K[0][1]*K[1][0] and K[0][0]*K[1][1], two terms of one
+    determinant, differ; the later entry is named."""
+    parameters = {"m": ("2", "kg"), "J": ("10m", "kg*m^2"), "k": ("100", "N/m"),
+                  "kt": ("5", "N*m/rad"), "kc": ("3", "N/m"), "r": ("50m", "m")}
+    body = ('[polynomial.mechanical]\nM = [["m", 0], [0, "J"]]\n'
+            'K = [["k + kc", "-kc*r"], ["-kc*r", "kt + kc*r^2"]]')
+    assert parse_case(case_text(parameters, body), "r.toml").notes == ()
+    message = error_of(parameters, body.replace('["k + kc", "-kc*r"]', '["k + kc", "-kc"]'))
+    assert message.startswith("u.toml:28: polynomial.mechanical.K[1][0]: in det(M*s^2 + C*s + K) the entries "
+                              "[0][1] and [1][0] multiply to [")
+    assert message.endswith("and both products are terms of one sum; expected entries whose dimensions "
+                            "factor by row and column (row i a force or torque, column j per unit of "
+                            "coordinate j)")
+    # the dimensions named are pint's: (N/m)*N against (N/m)*(N*m)
+    assert describe(unit_dimension("N/m") * unit_dimension("N")) in message
+    assert f"to {describe(unit_dimension('N') ** 2)}, and" in message
+
+
+def test_a_correct_motor_state_space_with_feedback_passes():
+    """di/dt = (-R i - Kt w + v)/L, dw/dt = (Kt i - b w)/J with v = -(kp i + kw w): every
+    entry and every pair agrees, so no note is said."""
+    parameters = {**MOTOR, "kp": ("3", "V/A"), "kw": ("10m", "V*s/rad")}
+    case = parse_case(case_text(parameters, state_space(MOTOR_A, 'B = [["1/L"], [0]]\nK = [["kp", "kw"]]')),
+                      "motor.toml")
+    assert case.notes == ()
+    # the trade's facts behind it (common practice, no source), through pint's registry:
+    # R/L and b/J are rates, and Kt/L times Kt/J is a rate squared
+    assert unit_dimension("ohm") / unit_dimension("H") == UREG.parse_units("1/s").dimensionality
+    assert (unit_dimension("N*m/A") ** 2 / unit_dimension("H") / unit_dimension("kg*m^2")
+            == UREG.parse_units("1/s^2").dimensionality)
+
+
+def test_a_state_space_diagonal_entry_that_is_not_a_rate_is_one_line(tmp_path):
+    """A[1][1] = -b (a damping, not a rate): robust check names the entry and asks for 1/s."""
+    message = run_check(tmp_path, case_text(MOTOR, state_space('[["-R/L", "-Kt/L"], ["Kt/J", "-b"]]')))
+    assert message.endswith(": polynomial.state_space.A[1][1]: s has dimension [1/time], -b (A[1][1]) has "
+                            "[energy*time]; expected diagonal entries in 1/s (rates), since det(s*I - A) "
+                            "subtracts each from s")
+
+
+def test_a_discrete_state_space_diagonal_entry_must_be_a_pure_number():
+    """With variable z the diagonal of A adds to z, a pure number: b/J (a rate) is refused."""
+    text = 'variable = "z"\n' + case_text(MOTOR, state_space('[["0.5", "1"], ["0", "b/J"]]'))
+    with pytest.raises(CaseError) as caught:
+        parse_case(text, "z.toml")
+    message = str(caught.value)
+    assert "polynomial.state_space.A[1][1]: z is dimensionless, b/J (A[1][1]) has [1/time]" in message
+    assert "expected dimensionless diagonal entries" in message
+
+
+def test_state_feedback_must_have_the_dimension_of_a_entry_by_entry():
+    """kp in A/V instead of V/A: (B*K)[0][0] is no longer a rate like A[0][0] = -R/L."""
+    parameters = {**MOTOR, "kp": ("3", "A/V"), "kw": ("10m", "V*s/rad")}
+    message = error_of(parameters, state_space(MOTOR_A, 'B = [["1/L"], [0]]\nK = [["kp", "kw"]]'))
+    assert ("polynomial.state_space.A[0][0]: -R/L (A[0][0]) has dimension [1/time], (B*K)[0][0] has "
+            "[1/resistance^2/time]; expected (B*K)[0][0] of the dimension of A[0][0]") in message
+
+
+def test_the_terms_of_one_entry_of_b_times_k_must_agree():
+    """Two inputs: (B K)[0][0] = B[0][0]*K[0][0] + B[0][1]*K[1][0] adds a rate to a resistance
+    per time; the later gain K[1][0] is named."""
+    parameters = {**MOTOR, "k1": ("3", "V/A"), "k2": ("1", "V")}
+    message = error_of(parameters, state_space(MOTOR_A, 'B = [["1/L", "1/L"], [0, 0]]\n'
+                                                        'K = [["k1", "k1"], ["k2", "k1"]]'))
+    assert "polynomial.state_space.K[1][0]: 1/L*k1 (B[0][0]*K[0][0]) has dimension [1/time]" in message
+
+
+def test_a_state_space_pair_whose_state_units_do_not_cancel_is_refused():
+    """A[1][0] = Kt*J instead of Kt/J: every entry alone may be a ratio of state units, but
+    A[0][1]*A[1][0] must be a rate squared."""
+    message = error_of(MOTOR, state_space('[["-R/L", "-Kt/L"], ["Kt*J", "-b/J"]]'))
+    assert ("polynomial.state_space.A[1][0]: in det(s*I - A) the entries [0][1] and [1][0] multiply to "
+            "[energy^2*time^2], the entries [0][0] and [1][1] to [1/time^2]") in message
+    assert message.endswith("expected A[i][j] in (unit of state i)/(unit of state j) per second, so that "
+                            "A[i][j]*A[j][i] has dimension [1/time^2]")
+
+
+def test_matrix_entries_that_are_numbers_or_unitless_are_not_compared():
+    """A[0][1] = 1 (a written number) and a parameter c without a unit leave their pairs
+    unchecked; the note names c."""
+    parameters = {"k": ("4", "N/m"), "m": ("1", "kg"), "c": ("1", "")}
+    case = parse_case(case_text(parameters, state_space('[["0", "1"], ["-k/m", "-c/m"]]')), "n.toml")
+    assert case.notes == ("n.toml: parameters without a unit, so the terms holding them are not checked "
+                          "for dimension: c",)

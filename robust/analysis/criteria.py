@@ -25,7 +25,7 @@ from __future__ import annotations
 
 import math
 import time
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
@@ -263,12 +263,15 @@ class Criterion:
             return self.unproven_ends()[1]
         return self.measure.shown(self.x_ends()[1], +1)
 
-    def limit_text(self) -> str:
-        """What limits it, for people: the witness point and the extra gain or lag."""
+    def limit_text(self, units: Mapping[str, str] | None = None) -> str:
+        """What limits it, for people: the witness point (with each part's unit from
+        ``units``) and the extra gain or lag."""
         limited = _limited_by(self.measure, self.bracket.witness, self.bracket.upper)
         if not limited:
             return ""
-        return ", ".join(f"{n} = {v:.6g}" if isinstance(v, float) else f"{n} = {v}" for n, v in limited.items())
+        shown = {**(units or {}), "extra_gain_db": "dB", "extra_phase_lag_deg": "deg"}
+        return ", ".join((f"{n} = {v:.6g}" if isinstance(v, float) else f"{n} = {v}")
+                         + (f" {shown[n]}" if shown.get(n) else "") for n, v in limited.items())
 
     def as_dict(self) -> dict[str, object]:
         """JSON: lower and upper in the unit, rounded outwards; limited_by; the search

@@ -12,6 +12,7 @@ and the proven lower end comes from sound sign bounds on box(rho), bisected.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 
@@ -59,16 +60,18 @@ class ScaleEnd:
             data["limits_reached"] = [format_fraction(v) for v in self.values]
         return data
 
-    def sentence(self, what: str = "the family") -> str:
-        """The end in plain words (``what`` names the scaled tolerances)."""
+    def sentence(self, what: str = "the family", units: Mapping[str, str] | None = None) -> str:
+        """The end in plain words (``what`` names the scaled tolerances; ``units`` gives a
+        part's unit beside the limit it reaches)."""
+        units = units or {}
         at = f"x{approx_text(self.scale, 6)}"
         names = ", ".join(self.parameters)
         text = {
             LimitKind.CROSSING: f"a root reaches the imaginary axis {'at' if self.exact else 'near'} {at}"
                                 + (f" (driven by {names})" if names else ""),
             LimitKind.PHYSICAL_LIMIT: "stable until " + (", ".join(
-                f"{n} reaches its physical limit {approx_text(v, 6)}" for n, v in zip(self.parameters, self.values,
-                                                                              strict=True))
+                f"{n} reaches its physical limit {approx_text(v, 6)}{_beside(units.get(n, ''))}"
+                for n, v in zip(self.parameters, self.values, strict=True))
                 if self.values else f"{names} reaches its physical limit") + f" at {at}; no root crosses before",
             LimitKind.DEGREE_LOSS: f"stable until the leading coefficient reaches zero at {at} "
                                    f"(through {names}): the model loses an order there; no root crosses before",
@@ -79,6 +82,10 @@ class ScaleEnd:
         if not self.proven:
             text += " (not proven: an undecided stretch lies below it)"
         return text
+
+
+def _beside(unit: str) -> str:
+    return f" {unit}" if unit else ""
 
 
 def _zero_end(poly: MultiPoly, scaling: Scaling, cap: Fraction) -> tuple[Fraction, Fraction, str | None] | None:

@@ -35,7 +35,7 @@ from ..exact.numbers import json_float, short_between
 from ..exact.routh import routh_table
 from ..model.case import REQUIREMENTS
 from ..model.display import HtmlDisplay
-from ..model.family import UncertainPolynomial
+from ..model.family import Box, UncertainPolynomial
 from .bracket import Bracket, Work, bisect_margin, float_down, float_up, just_below, scaled_tester
 from .criteria import REQUIREMENT_OF, Criterion, criteria_for, measure_criterion
 from .crossings import DEFAULT_CAP, exact_interval_margin, ray_upper_bound, tightener
@@ -67,6 +67,8 @@ class MarginResult(HtmlDisplay):
     safety_stop: bool = False
     #: Gain and phase margins, damping ratio, spectral radius (:mod:`.criteria`).
     criteria: tuple[Criterion, ...] = ()
+    #: The family's box, for the units of the parameters named in the result (display only).
+    box: Box | None = None
 
     @property
     def passed(self) -> bool | None:
@@ -231,7 +233,7 @@ def margin(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float |
                         limit = crossing_end(family, bracket)
         criteria = measured(bracket)
         return MarginResult(bracket, method, decay, req, outcome, limit, time.perf_counter() - started,
-                            direct, work.clock_fired, criteria)
+                            direct, work.clock_fired, criteria, family.box)
 
     nominal = family.coefficients_at(family.nominal)
     if nominal[0] == 0 or not routh_table(list(nominal)).is_hurwitz:

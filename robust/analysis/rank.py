@@ -51,6 +51,7 @@ class ParameterRank:
     tolerance: str
     tightened: Fraction | None  # largest certified scale that restores stability (failing designs)
     restores: bool | None
+    unit: str = ""  # as the case wrote it, for display
 
     @property
     def crosses(self) -> bool:
@@ -69,6 +70,7 @@ class ParameterRank:
             "margin_given_others_bracket": self.margin_given_others.as_dict(),
             "acts_through": [{"power": p, "direction": d} for p, d in self.coefficients],
             "tolerance": self.tolerance,
+            "unit": self.unit,
             "tightened_scale": json_float(self.tightened),
             "restores_stability_alone": self.restores,
         }
@@ -201,16 +203,17 @@ def rank(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float = 1
         acts = tuple(sorted(((node[1], graph.edges[("parameter", name), node]["direction"])
                              for node in graph.successors(("parameter", name))), reverse=True))
         tol_text = next((p.tolerance for p in parameters if p.name == name), "") if parameters else ""
+        unit = family.box.unit_of(name)
         if family.box.low[i] == family.box.high[i]:
             fixed = Bracket(cap, None, note="no tolerance")
             end = ScaleEnd(LimitKind.CAP, (), cap, cap, None, "no tolerance")
-            out.append(ParameterRank(name, fixed, end, fixed, end, acts, tol_text, None, None))
+            out.append(ParameterRank(name, fixed, end, fixed, end, acts, tol_text, None, None, unit))
             continue
         if time.perf_counter() >= deadline:  # the safety stop: the parts left are not ranked
             clock = True
             skipped = Bracket(Fraction(0), None, note="not computed: the wall-clock safety stop fired")
             end = ScaleEnd(LimitKind.CAP, (), cap, cap, None, "not computed", proven=False)
-            out.append(ParameterRank(name, skipped, end, skipped, end, acts, tol_text, None, None))
+            out.append(ParameterRank(name, skipped, end, skipped, end, acts, tol_text, None, None, unit))
             continue
         alone, alone_end = _alone(family, i, cap, tol, max_boxes)
         work = Work(max_tests, deadline)
@@ -220,7 +223,8 @@ def rank(case_or_family, cap: Fraction | float = DEFAULT_CAP, rel_tol: float = 1
         if robust_ok is False:
             restores = True if given.lower > 0 else (False if given.upper == 0 else None)
             tightened = given.lower if restores else None
-        out.append(ParameterRank(name, alone, alone_end, given, given_end, acts, tol_text, tightened, restores))
+        out.append(ParameterRank(name, alone, alone_end, given, given_end, acts, tol_text, tightened,
+                                 restores, unit))
     # crossings first (the parts that matter for stability), then the parts that only reach a limit
     out.sort(key=lambda p: (not p.crosses, p.margin_alone.lower, p.margin_given_others.lower, p.name))
     return RankResult(tuple(out), robust_ok, time.perf_counter() - started, clock)

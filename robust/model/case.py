@@ -462,9 +462,14 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
             numerator, denominator = coefficients_polynomial(parsed, work)
         elif form in MATRIX_FORMS:
             section = f"polynomial.{form}"
-            (numerator, denominator), written = matrix_polynomial(
-                reader, form, poly[form], variable, work, lambda key, text, index: _formula(
-                    reader, section, key, text, names, variable, False, work, index))
+
+            def entry(key: str, text: object, index: tuple[int, int]) -> ParsedFormula:
+                read.append((section, key, index, _formula(reader, section, key, text, names, variable,
+                                                            False, work, index, units)))
+                return read[-1][3]
+
+            (numerator, denominator), written = matrix_polynomial(reader, form, poly[form], variable, work,
+                                                                  entry)
             formulas += written
         elif form == "diagram":
             (numerator, denominator), written, diagram, sides = diagram_polynomial(
@@ -504,7 +509,8 @@ def case_from_data(data: dict, path: str, sha256: str, text: str = "") -> Case:
     degree = sparse.degree_in(numerator, 0)
     if degree > MAX_DEGREE:
         raise reader.error("polynomial", form, "degree too high", f"degree <= {MAX_DEGREE}", degree)
-    box = Box(names, tuple(p.low for p in parameters), tuple(p.high for p in parameters))
+    box = Box(names, tuple(p.low for p in parameters), tuple(p.high for p in parameters),
+              tuple(p.unit.strip() for p in parameters))
     nominal = tuple(p.nominal for p in parameters)
     slots = 1 + len(names)
     try:

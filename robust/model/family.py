@@ -39,6 +39,13 @@ class Box:
     names: tuple[str, ...]
     low: tuple[Fraction, ...]
     high: tuple[Fraction, ...]
+    #: Each parameter's unit as the case wrote it ("" for none), for display only: not part
+    #: of the box's identity, and not carried into the sub-boxes of a search.
+    units: tuple[str, ...] = field(default=(), compare=False)
+
+    def unit_of(self, name: str) -> str:
+        """The unit of parameter ``name`` ("" when it has none or the box holds no units)."""
+        return dict(zip(self.names, self.units, strict=False)).get(name, "")
 
     @property
     def intervals(self) -> tuple[tuple[Fraction, Fraction], ...]:

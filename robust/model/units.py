@@ -10,7 +10,11 @@ frequency in rad/s), make their term's dimension unknown; only a factor 1, as in
 
 The forms add their own sums: the terms of an expression; ``a_k * s^k`` of a coefficient
 list; ``1 + P*C`` of a loop, whose loop gain must be dimensionless (a plant or a controller
-may carry a dimension, e.g. V/A). pint is imported only here and only for a case with units,
+may carry a dimension, e.g. V/A); ``M_ij s^2 + C_ij s + K_ij`` of a mechanical entry;
+``s - A_ii`` and ``A_ij - (B K)_ij`` of a state-space entry. A determinant adds, beside the
+product of its diagonal, the same product with (i, i), (j, j) swapped for (i, j), (j, i), so
+``P_ij P_ji`` must have the dimension of ``P_ii P_jj`` (state units cancel there, while an
+off-diagonal entry alone may be any ratio of them). pint is imported only here and only for a case with units,
 so commands on other cases do not load it.
 """
 
@@ -203,10 +207,11 @@ def check_units(parameters: Sequence[Any], variable: str, form: str,
     variable
         ``"z"`` (a pure number) or a continuous-time variable (1/time).
     form
-        ``"expression"``, ``"coefficients"`` or ``"loop"``.
+        ``"expression"``, ``"coefficients"``, ``"loop"``, ``"mechanical"`` or ``"state_space"``.
     formulas
         ``(section, key, index, parsed)`` of each formula, parsed with ``keep_tree``; a loop's
-        plant first, then its controller; a coefficient list highest power first.
+        plant first, then its controller; a coefficient list highest power first; every entry
+        of every matrix, index ``(row, column)``.
     fail
         Builds the error of a field: ``fail(section, key, problem, expected, index=...)``.
 
@@ -241,6 +246,12 @@ def check_units(parameters: Sequence[Any], variable: str, form: str,
         _check_coefficients(formulas, results, known[variable], variable, fail)
     elif form == "loop":
         _check_loop_gain(results[0], results[1], fail)
+    elif form in ("mechanical", "state_space") and formulas:
+        entries: dict[str, dict] = {}
+        for (_, key, index, parsed), dimension in zip(formulas, results, strict=True):
+            entries.setdefault(key, {})[index] = (dimension, parsed)
+        check = _check_mechanical if form == "mechanical" else _check_state_space
+        check(formulas[0][0], entries, known[variable], variable, fail)
     return tuple(p.name for p in parameters if p.name not in known)
 
 
@@ -250,14 +261,22 @@ def _check_coefficients(formulas, results, frequency: Dimension, variable: str, 
     terms = []
     for (_, _, index, parsed), dimension in zip(formulas, results, strict=True):
         k = n - index
-        term = f"({parsed.text})" if parsed.tree.kind == "sum" else parsed.text
-        term += "" if k == 0 else f"*{variable}" if k == 1 else f"*{variable}^{k}"
-        terms.append((None if dimension is None else dimension * frequency**k, term))
+        terms.append((_times(dimension, frequency**k), _term(parsed, variable, k)))
     try:
         _common(terms)
     except _Mismatch as mismatch:
         section, key, index, _ = formulas[mismatch.position]
         raise fail(section, key, mismatch.problem, EXPECTED_SUM, index=index) from None
+
+
+def _term(parsed: ParsedFormula, variable: str, k: int) -> str:
+    """The text of ``parsed * variable^k`` (a sum in parentheses)."""
+    term = f"({parsed.text})" if parsed.tree is not None and parsed.tree.kind == "sum" else parsed.text
+    return term + ("" if k == 0 else f"*{variable}" if k == 1 else f"*{variable}^{k}")
+
+
+def _times(dimension: Dimension, other: Dimension) -> Dimension:
+    return None if dimension is None or other is None else dimension * other
 
 
 def _check_loop_gain(plant: Dimension, controller: Dimension, fail: Fail) -> None:
@@ -268,3 +287,101 @@ def _check_loop_gain(plant: Dimension, controller: Dimension, fail: Fail) -> Non
                f"the loop gain P*C has dimension {describe(plant * controller)} (plant "
                f"{describe(plant)}, controller {describe(controller)}), but 1 + P*C adds it to 1",
                "a dimensionless loop gain (e.g. a plant in V/A with a controller in A/V)")
+
+
+_MECHANICAL = ("M*s^2, C*s and K of one dimension at each entry (e.g. kg*m^2, N*m*s/rad and N*m/rad "
+               "for a rotation; kg, N*s/m and N/m for a translation)")
+
+
+def _at(index: tuple[int, int]) -> str:
+    return f"[{index[0]}][{index[1]}]"
+
+
+def _check_mechanical(section: str, entries: dict, frequency: Dimension, variable: str, fail: Fail) -> None:
+    """det(M s^2 + C s + K): at each place (i, j), M_ij s^2 + C_ij s + K_ij is one sum."""
+    pencil, named = {}, {}
+    for index in entries["M"]:
+        terms, keys = [], []
+        for key, k in (("M", 2), ("C", 1), ("K", 0)):
+            if key in entries:
+                dimension, parsed = entries[key][index]
+                text = f"{_term(parsed, variable, k)} ({key}{_at(index)})"
+                terms.append((_times(dimension, frequency**k), text))
+                keys.append(key)
+        try:
+            pencil[index] = _common(terms)
+        except _Mismatch as mismatch:
+            raise fail(section, keys[mismatch.position], mismatch.problem, _MECHANICAL, index=index) from None
+        # a pair's error names the first matrix whose entry there has a known dimension
+        known = [key for (dimension, _), key in zip(terms, keys, strict=True) if dimension is not None]
+        named[index] = (known or ["K"])[0]
+    _check_pairs(section, pencil, named, f"M*{variable}^2 + C*{variable} + K", fail,
+                 "entries whose dimensions factor by row and column (row i a force or torque, "
+                 "column j per unit of coordinate j)")
+
+
+def _feedback(section: str, entries: dict, n: int, variable: str, fail: Fail) -> dict:
+    """The dimension of each entry (i, j) of B K, a sum of B_ik K_kj (None where unknown)."""
+    b, k_matrix = entries["B"], entries["K"]
+    inputs = 1 + max(k for _, k in b)
+    out = {}
+    for i in range(n):
+        for j in range(n):
+            terms = [(_times(b[i, k][0], k_matrix[k, j][0]),
+                      f"{_term(b[i, k][1], variable, 0)}*{_term(k_matrix[k, j][1], variable, 0)} "
+                      f"(B[{i}][{k}]*K[{k}][{j}])") for k in range(inputs)]
+            try:
+                out[i, j] = _common(terms)
+            except _Mismatch as mismatch:
+                raise fail(section, "K", mismatch.problem, EXPECTED_SUM,
+                           index=(mismatch.position, j)) from None
+    return out
+
+
+def _check_state_space(section: str, entries: dict, frequency: Dimension, variable: str, fail: Fail) -> None:
+    """det(sI - A) or det(sI - (A - B K)): B K adds to A entry by entry, each diagonal entry
+    adds to s, and the state units cancel in every product of the determinant."""
+    a = entries["A"]
+    n = 1 + max(i for i, _ in a)
+    feedback = _feedback(section, entries, n, variable, fail) if "K" in entries and "B" in entries else {}
+    matrix = f"{variable}*I - (A - B*K)" if feedback else f"{variable}*I - A"
+    diagonal = (f"diagonal entries in 1/s (rates), since det({matrix}) subtracts each from {variable}"
+                if frequency else f"dimensionless diagonal entries, since det({matrix}) subtracts each "
+                f"from {variable}")
+    pencil = {}
+    for (i, j), (dimension, parsed) in a.items():
+        own = (dimension, f"{parsed.text} (A{_at((i, j))})")
+        fed = (feedback.get((i, j)), f"(B*K){_at((i, j))}")
+        try:
+            pencil[i, j] = _common([own, fed])
+        except _Mismatch as mismatch:
+            raise fail(section, "A", mismatch.problem, f"(B*K){_at((i, j))} of the dimension of "
+                       f"A{_at((i, j))}, since A - B*K subtracts them (units of B and K)",
+                       index=(i, j)) from None
+        if i == j:  # the entry of s*I - A there is a sum with s
+            try:
+                _common([(frequency, variable), (pencil[i, j], (own if dimension is not None else fed)[1])])
+            except _Mismatch as mismatch:
+                raise fail(section, "A", mismatch.problem, diagonal, index=(i, j)) from None
+            pencil[i, j] = frequency
+    per_second = " per second" if frequency else ""
+    _check_pairs(section, pencil, dict.fromkeys(a, "A"), matrix, fail,
+                 f"A[i][j] in (unit of state i)/(unit of state j){per_second}, so that A[i][j]*A[j][i] has "
+                 f"dimension {describe(frequency**2)}")
+
+
+def _check_pairs(section: str, pencil: dict, named: dict, matrix: str, fail: Fail, expected: str) -> None:
+    """The determinant of ``pencil`` (dimension per entry, None where unknown) holds the
+    product of the diagonal and, beside it, the same product with entries (i, i), (j, j)
+    swapped for (i, j), (j, i): two terms of one sum, so P_ij P_ji ~ P_ii P_jj."""
+    n = 1 + max(i for i, _ in pencil)
+    for i in range(n):
+        for j in range(i + 1, n):
+            across = _times(pencil[i, j], pencil[j, i])
+            along = _times(pencil[i, i], pencil[j, j])
+            if across is not None and along is not None and across != along:
+                raise fail(section, named[j, i],
+                           f"in det({matrix}) the entries {_at((i, j))} and {_at((j, i))} multiply to "
+                           f"{describe(across)}, the entries {_at((i, i))} and {_at((j, j))} to "
+                           f"{describe(along)}, and both products are terms of one sum", expected,
+                           index=(j, i))

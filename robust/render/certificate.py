@@ -10,7 +10,7 @@ from ..exact.numbers import approx_text, percent_text
 from ..exact.routh import RouthTable
 from ..model.family import Box
 from .blocks import Cell, Code, ItemList, Paragraph, Section, Table
-from .fmt import entry_cell, exact_cell, witness_roots
+from .fmt import box_text, entry_cell, exact_cell, units_of, witness_roots
 
 __all__ = ["certificate_section", "proof_blocks", "undecided_blocks", "witness_section"]
 
@@ -121,11 +121,11 @@ def certificate_section(result: CheckResult, degree: int, proof: dict | None = N
 def witness_section(case, witness: Witness, title: str = "Witness: a parameter set that is not stable"
                     ) -> Section:
     """The counterexample, exact and as floats, with its root counts and root values; ``case``
-    gives each parameter's range and unit (a :class:`Box` gives the range alone)."""
+    gives each parameter's range and unit (a :class:`Box` gives the units the case gave it)."""
     rows = []
     for name, value in witness.parameters.items():
         if isinstance(case, Box):
-            (low, high), unit = case.intervals[case.names.index(name)], ""
+            (low, high), unit = case.intervals[case.names.index(name)], case.unit_of(name)
         else:
             p = case.parameter(name)
             low, high, unit = p.low, p.high, p.unit
@@ -153,9 +153,7 @@ def undecided_blocks(result: CheckResult) -> list:
     blocks: list = [Paragraph((f"Unresolved: {percent_text(result.unresolved, 3)} of the box volume is "
                                "neither proven stable nor refuted within the budget.",))]
     if result.largest_unproven is not None:
-        box = result.largest_unproven
-        parts = ", ".join(f"{n} in [{approx_text(a)}, {approx_text(b)}]"
-                          for n, (a, b) in zip(box.names, box.intervals, strict=True))
+        parts = box_text(result.largest_unproven, units_of(result))
         blocks.append(Paragraph(("Largest unproven sub-box: " + parts + ".",)))
     blocks.append(Paragraph(("A larger --max-seconds budget may decide it.",), "note"))
     return blocks

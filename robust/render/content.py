@@ -36,7 +36,7 @@ from .blocks import (
     Table,
 )
 from .certificate import certificate_section, undecided_blocks, witness_section
-from .fmt import bound_text, criterion_ends
+from .fmt import bound_text, criterion_ends, units_of, with_unit
 from .text import margin_reading
 
 __all__ = ["CAUTIONS", "JOB_LINE", "build_document", "margins_section", "outcome", "parameters_section",
@@ -238,24 +238,25 @@ def margins_section(m: MarginResult, direct: Sequence[RequirementCheck] = (), sa
     requirements = {name: (required, result) for name, required, result in m.outcomes()}
     rows = []
 
-    def row(label: str, bracket, json_bracket: dict, key: str, name: str) -> tuple:
+    def row(label: str, bracket, json_bracket: dict, key: str, name: str, unit: str = "") -> tuple:
         exact = bracket.exact or ""
         if exact and bracket.decimal:
             exact = f"{exact} = {bracket.decimal}" if len(exact) <= 60 else f"≈ {bracket.decimal}"
         if name in requirements:
             required, result = requirements[name]
-            asked = Cell((f"≥ {approx_text(required)}",), numeric=True)
+            asked = Cell((with_unit(f"≥ {approx_text(required)}", unit),), numeric=True)
             verdict = Cell((_badge(result),))
         else:
             asked, verdict = Cell(("none",)), Cell(("-",))
-        return (Cell((label,)), Cell(_bracket_parts(bracket, json_bracket, key), numeric=True),
+        shown = _bracket_parts(bracket, json_bracket, key) + ((" " + unit,) if unit else ())
+        return (Cell((label,)), Cell(shown, numeric=True),
                 Cell((exact or "-",), mono=bool(exact)), asked, verdict)
 
     rows.append(row("robust margin ρ*: scale of every tolerance about nominal", m.margin,
                     data["margin"], "margin.margin", "margin"))
     if m.decay is not None:
-        rows.append(row("decay-rate margin σ*: every root has Re s < −σ", m.decay.bracket,
-                        data["decay_rate"], "margin.decay_rate", "decay_rate"))
+        rows.append(row("decay-rate margin σ*: every root has Re s < −σ, 1/s", m.decay.bracket,
+                        data["decay_rate"], "margin.decay_rate", "decay_rate", "1/s"))
     rows += [_criterion_row(c, data, requirements) for c in m.criteria]
     blocks: list = [Table(("quantity", "certified bracket", "exact value", "requirement", "outcome"),
                           tuple(rows)),
@@ -264,7 +265,9 @@ def margins_section(m: MarginResult, direct: Sequence[RequirementCheck] = (), sa
                                "which the scaled box stops standing for the hardware (a part at its "
                                "physical limit, a lost order, a divided-out factor at zero). Shown values "
                                "are rounded outwards.",), "note")]
-    items: list = [("What ends ρ*: " + m.limit.sentence() + ".",), (margin_reading(m.margin, m.limit),),
+    units = units_of(m)
+    items: list = [("What ends ρ*: " + m.limit.sentence(units=units) + ".",),
+                   (margin_reading(m.margin, m.limit),),
                    (f"Method: {m.method}.",)]
     if m.margin.note:
         items.append((f"Margin note: {m.margin.note}.",))
@@ -275,7 +278,8 @@ def margins_section(m: MarginResult, direct: Sequence[RequirementCheck] = (), sa
         if m.decay.bracket.note:
             items.append((f"Decay-rate note: {m.decay.bracket.note}.",))
     if m.margin.witness is not None:
-        pts = ", ".join(f"{n} = {approx_text(v, 6)}" for n, v in m.margin.witness.parameters.items())
+        pts = ", ".join(f"{n} = {with_unit(approx_text(v, 6), units.get(n, ''))}"
+                        for n, v in m.margin.witness.parameters.items())
         items.append(("Witness just beyond the margin: " + pts + ".",))
     for r in direct:
         items.append((f"Decided directly: {r.wording}: ", _badge(r.outcome))
@@ -288,7 +292,7 @@ def margins_section(m: MarginResult, direct: Sequence[RequirementCheck] = (), sa
                       "stable; the outcome above comes from the brackets.",))
     blocks.append(ItemList(tuple(items)))
     if m.criteria:
-        blocks += _criteria_notes(m.criteria)
+        blocks += _criteria_notes(m.criteria, units)
     return Section("Margins and requirements", tuple(blocks), anchor="margins")
 
 
@@ -331,11 +335,12 @@ def _criterion_row(criterion: Criterion, data: dict[str, Any],
     return (Cell((label,)), Cell(parts, numeric=True), Cell(("-",)), asked, verdict)
 
 
-def _criteria_notes(criteria: Sequence[Criterion]) -> list:
-    """What limits each criterion (its witness), and the reading of the criteria's brackets."""
+def _criteria_notes(criteria: Sequence[Criterion], units: dict[str, str]) -> list:
+    """What limits each criterion (its witness, each value with its unit), and the reading of
+    the criteria's brackets."""
     limits: list = []
     for criterion in criteria:
-        limit = criterion.limit_text()
+        limit = criterion.limit_text(units)
         if limit:
             limits.append((f"{criterion.measure.words.capitalize()} limited by: {limit}.",))
         note = "; ".join(x for x in (criterion.bracket.note, criterion.note) if x)
@@ -368,7 +373,8 @@ def ranking_section(r: RankResult, figure: bool = True) -> Section:
     rows = []
     for i, p in enumerate(r.parameters, start=1):
         acts = ", ".join(f"a{power} ({d})" for power, d in p.coefficients) or "-"
-        cells = [Cell((str(i),), numeric=True), Cell((p.name,), mono=True), Cell((p.tolerance,)),
+        cells = [Cell((str(i),), numeric=True), Cell((p.name,), mono=True), Cell((p.unit or "-",)),
+                 Cell((p.tolerance,)),
                  Cell((_rank_bracket(p.margin_alone, p.limit_alone),), numeric=True),
                  Cell((_rank_bracket(p.margin_given_others, p.limit_given_others),), numeric=True),
                  Cell((acts,))]
@@ -380,16 +386,17 @@ def ranking_section(r: RankResult, figure: bool = True) -> Section:
             else:
                 cells.append(Cell(("-",)))
         rows.append(tuple(cells))
-    header = ["rank", "parameter", "tolerance", "margin alone", "margin, others full", "acts through"]
+    header = ["rank", "parameter", "unit", "tolerance", "margin alone", "margin, others full", "acts through"]
     if failing:
         header.append("tightening this part alone")
     blocks: list = [
         Table(tuple(header), tuple(rows)),
-        Paragraph(("Margins are scales of that one tolerance: alone = the others at nominal; others full = "
-                   "the others over their whole range. 1 means the tolerance as given; ≥ means stable up to "
-                   "the value shown (no failure found before the cap). Parts marked (limit), (order lost) or "
-                   "(factor at 0) never make a root cross on their own: their margin ends where the model "
-                   "stops standing for the hardware, and they are ranked after the parts that cross; "
+        Paragraph(("Margins are scales of that one tolerance (ratios, without unit): alone = the others at "
+                   "nominal; others full = the others over their whole range. 1 means the tolerance as "
+                   "given; ≥ means stable up to the value shown (no failure found before the cap). Parts "
+                   "marked (limit), (order lost) or (factor at 0) never make a root cross on their own: "
+                   "their margin ends where the model stops standing for the hardware, and they are ranked "
+                   "after the parts that cross; "
                    "? marks an end not proven within the work budget.",), "note"),
     ]
     if figure:
@@ -411,7 +418,9 @@ def _yield(analysis: Analysis) -> Section:
     ]
     if y.unstable_ranges:
         blocks.append(Paragraph(("Parameter ranges of the unstable draws:",)))
-        blocks.append(ItemList(tuple((Code(n), f": {a:.6g} … {b:.6g}") for n, a, b in y.unstable_ranges)))
+        units = units_of(analysis.case)
+        blocks.append(ItemList(tuple((Code(n), ": " + with_unit(f"{a:.6g} … {b:.6g}", units.get(n, "")))
+                                     for n, a, b in y.unstable_ranges)))
     blocks.append(Paragraph(("A yield estimate is no proof: the verdict above is the worst case.",), "note"))
     return Section("Monte Carlo yield", tuple(blocks), anchor="yield")
 

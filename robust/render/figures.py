@@ -27,13 +27,16 @@ from .figdata import (
     value_set_data,
     written_roots,
 )
+from .fmt import units_of
 from .loopfigure import loop_response_picture
 
-__all__ = ["FIGURE_NAMES", "Picture", "draw_figures"]
+__all__ = ["FIGURE_NAMES", "Picture", "draw_figures", "parameter_label", "plane_labels"]
 
 #: File stems of the pictures, in report order.
 FIGURE_NAMES = ("ranking", "value_set", "root_cloud", "loop_response", "dependency_graph", "partition")
 
+#: The ranking picture's margin axis: scales are ratios.
+RANKING_AXIS = "margin: scale of the tolerance that keeps the loop robustly stable (a ratio, no unit)"
 #: Members sampled for the value-set and root-cloud pictures.
 SAMPLED_MEMBERS = 400
 
@@ -257,10 +260,9 @@ def root_cloud_picture(case, draws: np.ndarray, witness=None) -> Picture:
     if zeta is not None:
         _sector_rays(ax, float(zeta))
     ax.grid(True, color="#dddddd", linewidth=0.5)
-    var = getattr(case, "variable", "s")
-    # the Laplace variable of a time in seconds: Re s in 1/s, Im s (a frequency) in rad/s
-    ax.set_xlabel(f"Re {var} (1/s)" if var == "s" else f"Re {var}")
-    ax.set_ylabel(f"Im {var} (rad/s)" if var == "s" else f"Im {var}")
+    x_label, y_label = plane_labels(case)
+    ax.set_xlabel(x_label)
+    ax.set_ylabel(y_label)
     if spread > 30:
         _decade_ticks(ax.xaxis, ax.get_xlim(), width)
         _decade_ticks(ax.yaxis, ax.get_ylim(), width)
@@ -268,10 +270,11 @@ def root_cloud_picture(case, draws: np.ndarray, witness=None) -> Picture:
     figure.legend(loc="outside lower center", ncol=3, fontsize=8)
     if discrete:
         largest = float(np.abs(roots).max()) if len(roots) else float("nan")
-        alt = (f"Root cloud of {len(draws)} sampled members in the z-plane with the unit circle; "
-               f"largest root magnitude |z| {largest:.4g}")
+        alt = (f"Root cloud of {len(draws)} sampled members in the z-plane with the unit circle "
+               f"(axes {x_label} and {y_label}); largest root magnitude |z| {largest:.4g}")
     else:
-        alt = (f"Root cloud of {len(draws)} sampled members; largest real part "
+        alt = (f"Root cloud of {len(draws)} sampled members (axes {x_label} and {y_label}); "
+               "largest real part "
                f"{float(roots.real.max()) if len(roots) else float('nan'):.4g}"
                + (f"; damping sector boundary for ζ = {float(zeta):g}" if zeta is not None else ""))
     return Picture("root_cloud", _png(figure), alt)
@@ -361,7 +364,7 @@ def dependency_picture(case) -> Picture:
     box = {"boxstyle": "round,pad=0.3", "facecolor": "white", "edgecolor": "black", "linewidth": 0.9}
     held = "w" if family.discrete else family.variable  # the variable of the coefficients held
     for name, y in left.items():
-        ax.text(x_left, y, name, ha="right", va="center", fontsize=9.5, bbox=box)
+        ax.text(x_left, y, parameter_label(case, name), ha="right", va="center", fontsize=9.5, bbox=box)
     for power, y in right.items():
         ax.text(x_right, y, f"a{power}  ({held}^{power})", ha="left", va="center", fontsize=9.5,
                 bbox={**box, "boxstyle": "square,pad=0.3", "facecolor": "#eeeeee"})
@@ -427,15 +430,17 @@ def ranking_picture(analysis: Analysis) -> Picture:
     ax.axvline(1.0, color="black", linestyle="--", linewidth=1.2)
     ax.text(1.0, len(params) - 0.45, " 1 = tolerances as given", ha="left", va="bottom", fontsize=8)
     ax.set_yticks(y)
-    ax.set_yticklabels([p.name for p in params])
+    labels = [parameter_label(analysis.case, p.name) for p in params]
+    ax.set_yticklabels(labels)
     ax.set_xlim(0, top * 1.18)
     ax.set_ylim(-0.7, len(params) - 0.1)
-    ax.set_xlabel("margin: scale of the tolerance that keeps the loop robustly stable")
+    ax.set_xlabel(RANKING_AXIS)
     ax.grid(True, axis="x", color="#dddddd", linewidth=0.5)
     ax.set_axisbelow(True)
     figure.legend(loc="outside lower center", ncol=2, fontsize=8)
-    alt = "Parameter margins: " + "; ".join(
-        f"{p.name} alone {a:.4g}, given others {g:.4g}" for p, a, g in zip(params, alone, given, strict=True))
+    alt = f"Parameter margins ({RANKING_AXIS}): " + "; ".join(
+        f"{label} alone {a:.4g}, given others {g:.4g}"
+        for label, a, g in zip(labels, alone, given, strict=True))
     return Picture("ranking", _png(figure), alt)
 
 
@@ -490,22 +495,32 @@ def partition_picture(analysis: Analysis) -> Picture:
                                           facecolor=style["facecolor"], hatch=style["hatch"] or None))
     box = data["box"]
     ax.set_xlim(to_float(Fraction(box[x_name][0])), to_float(Fraction(box[x_name][1])))
-    ax.set_xlabel(_axis_label(analysis, x_name))
+    ax.set_xlabel(parameter_label(analysis.case, x_name))
     if y_name:
         ax.set_ylim(to_float(Fraction(box[y_name][0])), to_float(Fraction(box[y_name][1])))
-        ax.set_ylabel(_axis_label(analysis, y_name))
+        ax.set_ylabel(parameter_label(analysis.case, y_name))
     else:
         ax.set_yticks([])
     words = {"bernstein": "Bernstein (grey)", "kharitonov": "Kharitonov of the piece (hatched)",
              "open": "not proven (crossed)"}
     ax.set_title(f"{len(pieces)} piece(s): " + ", ".join(f"{k} {words.get(m, m)}" for m, k in counts.items()),
                  fontsize=9)
-    alt = (f"Partition of the box into {len(pieces)} pieces, projected on {x_name}"
-           + (f" and {y_name}" if y_name else "") + ": "
+    shown = [parameter_label(analysis.case, n) for n in (x_name, y_name) if n]
+    alt = (f"Partition of the box into {len(pieces)} pieces, projected on {' and '.join(shown)}: "
            + ", ".join(f"{k} proven by {m}" if m != "open" else f"{k} open" for m, k in counts.items()))
     return Picture("partition", _png(figure), alt)
 
 
-def _axis_label(analysis: Analysis, name: str) -> str:
-    unit = analysis.case.parameter(name).unit
+def parameter_label(case, name: str) -> str:
+    """A parameter as an axis or a node names it: "L (H)", the name alone without a unit."""
+    unit = units_of(case).get(name, "")
     return f"{name} ({unit})" if unit else name
+
+
+def plane_labels(case) -> tuple[str, str]:
+    """The root plane's axes: for a time in seconds Re s in 1/s and Im s (a frequency) in
+    rad/s; z = e^(sT) is a pure number."""
+    var = getattr(case, "variable", "s")
+    if case.family.discrete:
+        return f"Re {var} (no unit)", f"Im {var} (no unit)"
+    return f"Re {var} (1/s)", f"Im {var} (rad/s)"

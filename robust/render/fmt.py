@@ -10,10 +10,33 @@ from ..exact.numbers import approx_text, format_fraction, to_float
 from ..exact.routh import Entry, format_entry
 from .blocks import Cell
 
-__all__ = ["bound_text", "criterion_ends", "criterion_text", "entry_cell", "exact_cell", "short"]
+__all__ = ["bound_text", "box_text", "criterion_ends", "criterion_text", "entry_cell", "exact_cell", "short",
+           "units_of", "with_unit"]
 
 #: Exact texts longer than this are shown as a float, the exact text kept beside it.
 LONG = 14
+
+
+def units_of(source: object) -> dict[str, str]:
+    """name -> unit of the parameters that have one: from a case's parameters, or from a box
+    or a result that holds the case's box (nothing when neither is there)."""
+    parameters = getattr(source, "parameters", None)
+    if parameters is not None and all(hasattr(p, "unit") for p in parameters):
+        return {p.name: p.unit.strip() for p in parameters if p.unit.strip()}
+    box = source if hasattr(source, "units") else getattr(source, "box", None)
+    units = getattr(box, "units", ()) or ()
+    return {n: u for n, u in zip(box.names, units, strict=False) if u} if units else {}
+
+
+def with_unit(text: str, unit: str) -> str:
+    """``text`` with ``unit`` beside it ("4.7 uF"); ``text`` alone when there is no unit."""
+    return f"{text} {unit}" if unit else text
+
+
+def box_text(box, units: dict[str, str]) -> str:
+    """A box in words, each range with its unit: "R in [9900, 10100] ohm, C in [...]"."""
+    return ", ".join(with_unit(f"{n} in [{approx_text(a)}, {approx_text(b)}]", units.get(n, ""))
+                     for n, (a, b) in zip(box.names, box.intervals, strict=True))
 
 
 def short(x: float, digits: int = 6) -> str:

@@ -6,7 +6,7 @@ from fractions import Fraction
 
 from ..exact.numbers import approx_text, format_fraction, json_float, percent_text
 from ..exact.routh import RouthTable, format_entry
-from .fmt import criterion_text, witness_roots
+from .fmt import box_text, criterion_text, units_of, with_unit, witness_roots
 
 __all__ = ["render_table", "roots_sentence"]
 
@@ -155,9 +155,8 @@ def render_check(case, result) -> str:
         lines.append(f"Witness ({w.found_by}), exact values inside the box:")
         for name, value in w.parameters.items():
             p = case.parameter(name)
-            unit = f" {p.unit}" if p.unit else ""
-            lines.append(f"  {name} = {_fmt(value)}{unit}   "
-                         f"[range {approx_text(p.low, 6)} .. {approx_text(p.high, 6)}]")
+            span = f"{approx_text(p.low, 6)} .. {approx_text(p.high, 6)}"
+            lines.append(f"  {name} = {with_unit(_fmt(value), p.unit)}   [range {with_unit(span, p.unit)}]")
         lines.append(f"  roots: {w.roots.words}")
         values = witness_roots(w)
         if values is None:
@@ -168,10 +167,7 @@ def render_check(case, result) -> str:
     if result.verdict == "undecided":
         lines.append(f"Unresolved: {percent_text(result.unresolved, 3)} of the box volume")
         if result.largest_unproven is not None:
-            parts = ", ".join(f"{n} in [{approx_text(a, 6)}, {approx_text(b, 6)}]"
-                              for n, (a, b) in zip(result.largest_unproven.names,
-                                                   result.largest_unproven.intervals, strict=True))
-            lines.append(f"Largest unproven sub-box: {parts}")
+            lines.append(f"Largest unproven sub-box: {box_text(result.largest_unproven, units_of(case))}")
     lines.append(f"Time: {result.seconds:.2f} s")
     return "\n".join(lines)
 
@@ -251,9 +247,9 @@ def _diagram_lines(diagram: dict) -> list[str]:
     return lines
 
 
-def _bracket_text(b) -> str:
+def _bracket_text(b, unit: str = "") -> str:
     upper = "no witness up to the cap" if b.upper is None else approx_text(b.upper, 9)
-    text = f"[{approx_text(b.lower, 9)}, {upper}]"
+    text = with_unit(f"[{approx_text(b.lower, 9)}, {upper}]", unit)
     if b.exact:
         text += f"   exact: {b.exact}" + (f" = {b.decimal}" if b.decimal else "")
     if b.note:
@@ -281,28 +277,30 @@ def margin_reading(bracket, limit) -> str:
 def render_margin(case, result) -> str:
     """``robust margin`` for people."""
     m = result.margin
+    units = units_of(case)
     lines = [f"Case: {case.title}   [{case.path}]",
              f"Robust margin rho* (scale of every tolerance about nominal): {_bracket_text(m)}",
              f"  method: {result.method}",
-             f"  what ends it: {result.limit.sentence()}",
+             f"  what ends it: {result.limit.sentence(units=units)}",
              "  " + margin_reading(m, result.limit)]
     if m.witness is not None:
-        pts = ", ".join(f"{n} = {approx_text(v, 6)}" for n, v in m.witness.parameters.items())
+        pts = ", ".join(f"{n} = {with_unit(approx_text(v, 6), units.get(n, ''))}"
+                        for n, v in m.witness.parameters.items())
         lines.append(f"  witness just beyond the margin: {pts}")
     if result.outcome is not None:
         lines.append(f"Requirement margin >= {approx_text(result.requirement)}: {result.outcome.word}")
     if result.decay is not None:
         d = result.decay
-        lines.append(f"Decay-rate margin sigma* (every root has Re(s) < -sigma): {_bracket_text(d.bracket)}")
+        lines.append(f"Decay-rate margin sigma* (every root has Re(s) < -sigma): {_bracket_text(d.bracket, '1/s')}")
         settle = d.settling_time()
         if settle is not None:
             lines.append(f"  worst-case 2 % settling time about 4/sigma = {settle:.4g} s (common rule of thumb)")
         if d.outcome is not None:
-            lines.append(f"Requirement decay_rate >= {approx_text(d.requirement)}: {d.outcome.word}")
+            lines.append(f"Requirement decay_rate >= {approx_text(d.requirement)} 1/s: {d.outcome.word}")
     for c in result.criteria:
         lines.append(f"{c.measure.words.capitalize()}, worst case over the box: {criterion_text(c)}")
         if c.limit_text():
-            lines.append(f"  limited by: {c.limit_text()}")
+            lines.append(f"  limited by: {c.limit_text(units)}")
         decay = c.decay_equivalent()
         if decay is not None and decay[0] > 0:
             high = "none" if decay[1] is None else f"{decay[1]:.6g}"
@@ -330,21 +328,24 @@ def _scale_cell(bracket, limit) -> str:
 
 def render_rank(case, result) -> str:
     """``robust rank`` for people."""
+    units = units_of(case)
     lines = [f"Case: {case.title}   [{case.path}]",
-             "Parameters, most critical first (margins are scales of that tolerance):",
-             f"{'parameter':<12} {'tolerance':<10} {'alone':>14} {'others full':>14}  acts through"]
+             "Parameters, most critical first (margins are scales of that tolerance, no unit):",
+             f"{'parameter':<12} {'unit':<10} {'tolerance':<10} {'alone':>14} {'others full':>14}  "
+             "acts through"]
     for p in result.parameters:
         alone = _scale_cell(p.margin_alone, p.limit_alone)
         given = _scale_cell(p.margin_given_others, p.limit_given_others)
         acts = ", ".join(f"a{power}({d})" for power, d in p.coefficients)
-        lines.append(f"{p.name:<12} {p.tolerance:<10} {alone:>14} {given:>14}  {acts}")
+        unit = p.unit or units.get(p.name, "") or "-"
+        lines.append(f"{p.name:<12} {unit:<10} {p.tolerance:<10} {alone:>14} {given:>14}  {acts}")
     limited = [p for p in result.parameters if p.limit_alone.kind.value in ("physical_limit", "degree_loss",
                                                                              "denominator")]
     if limited:
         lines.append("")
         lines.append("Alone, these parts never destabilise the loop; their margin ends where the model ends:")
         for p in limited:
-            lines.append(f"  {p.name}: {p.limit_alone.sentence()}")
+            lines.append(f"  {p.name}: {p.limit_alone.sentence(units=units)}")
     if result.robustly_stable is False:
         lines.append("")
         lines.append("The design is not robustly stable. Tightening one tolerance alone (others as given):")
@@ -372,8 +373,10 @@ def render_yield(case, result) -> str:
              f"  exact re-checks of unclear float decisions: {result.exact_rechecks}"]
     if result.unstable_ranges:
         lines.append("  parameter ranges of the unstable draws:")
+        units = units_of(case)
         for name, a, b in result.unstable_ranges_exact:
-            lines.append(f"    {name}: {approx_text(a)} .. {approx_text(b)}")
+            span = f"{approx_text(a)} .. {approx_text(b)}"
+            lines.append(f"    {name}: {with_unit(span, units.get(name, ''))}")
     lines.append("A yield estimate is no proof: use `robust check` for the worst case.")
     return "\n".join(lines)
 
