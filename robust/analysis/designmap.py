@@ -138,13 +138,13 @@ class DesignMap:
     required_margin: Fraction | None = None
     seconds: float = field(default=0.0, compare=False)
 
-    def count(self, verdict: Verdict) -> int:
+    def count(self, verdict: Verdict | str) -> int:
         """Cells with this verdict."""
-        return sum(1 for c in self.cells if c.verdict is verdict)
+        return sum(1 for c in self.cells if c.verdict is Verdict(verdict))
 
-    def fraction(self, verdict: Verdict) -> Fraction:
+    def fraction(self, verdict: Verdict | str) -> Fraction:
         """The share of the design region with this verdict (exact)."""
-        return sum((c.size(self.axes) for c in self.cells if c.verdict is verdict), Fraction(0))
+        return sum((c.size(self.axes) for c in self.cells if c.verdict is Verdict(verdict)), Fraction(0))
 
     def stable_intervals(self) -> list[tuple[Fraction, Fraction]]:
         """One axis: the proven-stable design intervals, adjacent stable cells merged."""
@@ -342,24 +342,24 @@ def _refine(axes, resolution: int, depth: int, max_cells: int, decide_all) -> tu
     found = dict(zip(grid, decide_all(grid, 0), strict=True))
     decisions = len(grid)
     children = 2 ** len(axes)
-    for level in range(1, depth + 1):
+    for _round in range(depth):
         stable = [corner for (_, corner), r in found.items() if r["verdict"] == "stable"]
-        wanted = [(lvl, corner) for (lvl, corner), r in found.items()
-                  if r["verdict"] == "undecided"
-                  or (r["verdict"] == "unstable" and any(_touch(corner, s) for s in stable))]
+        wanted = [(lvl, corner) for (lvl, corner), r in found.items() if lvl < depth and (
+                  r["verdict"] == "undecided"
+                  or (r["verdict"] == "unstable" and any(_touch(corner, s) for s in stable)))]
         # undecided first, then unstable, each in the order of position: a fixed order
         wanted.sort(key=lambda cell: (found[cell]["verdict"] != "undecided", cell[1]))
         wanted = wanted[: max(0, (max_cells - decisions) // children)]
         if not wanted:
             break
-        half = 2 ** (depth - level)
         new: list[tuple[int, tuple]] = []
         for cell in wanted:
             del found[cell]
             parts: list[tuple] = [()]
-            for lo, _hi in cell[1]:
-                parts = [(*p, s) for p in parts for s in ((lo, lo + half), (lo + half, lo + 2 * half))]
-            new += [(level, p) for p in parts]
+            for lo, hi in cell[1]:
+                middle = (lo + hi) // 2  # widths are powers of two on the finest grid
+                parts = [(*p, s) for p in parts for s in ((lo, middle), (middle, hi))]
+            new += [(cell[0] + 1, p) for p in parts]
         found.update(zip(new, decide_all(new, decisions), strict=True))
         decisions += len(new)
     return found, decisions

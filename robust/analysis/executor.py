@@ -198,7 +198,7 @@ class TaskRunner:
         """The chunks on a dask.distributed cluster; a chunk whose worker dies is retried."""
         address = self.cluster
         try:
-            from distributed import Client, as_completed
+            from distributed import Client
             from distributed.scheduler import KilledWorker
         except ImportError:
             raise InputError("--cluster", "needs dask.distributed, which is not installed",
@@ -210,11 +210,9 @@ class TaskRunner:
                 raise ExecutorError(f"--cluster: cannot reach the scheduler at {address} ({error})") from None
         futures = [self._client.submit(_run_chunk, function, part, retries=DASK_RETRIES, pure=False)
                    for part in parts]
-        index = {future.key: i for i, future in enumerate(futures)}
         results: dict[int, list] = {}
         done = 0
-        for future in as_completed(futures):
-            i = index[future.key]
+        for i, future in enumerate(futures):  # in order: progress lags a little, results do not
             try:
                 results[i] = future.result()
             except KilledWorker:

@@ -57,7 +57,8 @@ def render_map(result: DesignMap, title: str = "") -> str:
     if result.required_margin is not None:
         summary = result.summary()["margin"]
         lines.append(f"  required margin {approx_text(result.required_margin, 6)} proven in "
-                     f"{summary['pass']} stable cell(s), refuted in {summary['fail']}, open in {summary['open']}")
+                     f"{summary['pass']} stable cell(s), refuted in {summary['fail']}, "
+                     f"open in {summary['open']}")
     if len(axes) == 1:
         name = axes[0].name
         intervals = result.stable_intervals()
