@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import json
 from fractions import Fraction
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -157,3 +158,37 @@ def test_map_command_writes_figures_and_refuses_a_folder_of_other_files(cubic_pa
     assert (out / "notes.txt").read_text() == "mine"
     text = CliRunner().invoke(main, args[:-2])
     assert "Proven stable for every toleranced value when K lies in" in text.stdout
+
+
+CASES_DIR = Path(__file__).resolve().parent.parent / "cases"
+
+
+@pytest.mark.parametrize(("name", "vary"), [("servo_pid", "Ka=2..80"), ("active_filter", "kr=1.01..3.5")])
+def test_shipped_cases_draw_certified_maps(name, vary, tmp_path):
+    """robust map draws the two demo maps (amplifier gain of the servo, gain-setting ratio of
+    the filter); at every corner of every stable cell's box numpy's roots lie in the open
+    left half-plane, and every witness has a root numpy puts on or right of the axis."""
+    path = CASES_DIR / f"{name}.toml"
+    result = CliRunner().invoke(main, ["map", str(path), "--vary", vary, "--resolution", "6", "--depth", "2",
+                                       "--workers", "1", "-o", str(tmp_path / "map"), "--json"])
+    assert result.exit_code == 0, result.output
+    data = json.loads(result.stdout)
+    family = load_case(path).family
+    axis = data["axes"][0]["name"]
+    index = family.names.index(axis)
+    assert data["summary"]["stable"] > 0 and data["summary"]["unstable"] > 0
+    for cell in data["cells"]:
+        if cell["verdict"] == "stable":
+            low, high = (F(v) for v in cell["ranges"][axis])
+            for corner in family.box.vertices():
+                for value in (low, high):
+                    point = list(corner)
+                    point[index] = value
+                    coefficients = [float(c) for c in family.coefficients_at(point)]
+                    assert max(np.roots(coefficients).real) < 0
+        if cell["verdict"] == "unstable":
+            point = [F(cell["witness"]["parameters"][n]) for n in family.names]
+            coefficients = [float(c) for c in family.coefficients_at(point)]
+            largest = max(abs(c) for c in coefficients)
+            assert max(np.roots([c / largest for c in coefficients]).real) > -1e-6
+    assert (tmp_path / "map" / "map.svg").read_bytes().lstrip().startswith(b"<?xml")
