@@ -105,7 +105,8 @@ def test_two_axes_cells_respect_the_closed_form_and_workers_do_not_change_the_ma
 
 
 def test_the_same_map_on_a_dask_cluster(cubic_path):
-    """A dask.distributed LocalCluster started here gives the same JSON as one process."""
+    """A dask.distributed LocalCluster started here gives the same JSON as one process, from
+    the library and from the command line (ROBUST_CLUSTER)."""
     distributed = pytest.importorskip("distributed")
     case = load_case(cubic_path)
     axes = [parse_axis("K=0.5..12", case)]
@@ -114,8 +115,15 @@ def test_the_same_map_on_a_dask_cluster(cubic_path):
                                   dashboard_address=None) as cluster:
         remote = design_map(case, axes, resolution=6, depth=2, workers=2,
                             cluster=cluster.scheduler_address).as_dict()
+        # the command line reaches the same cluster through ROBUST_CLUSTER
+        shown = CliRunner().invoke(main, ["map", str(cubic_path), "--vary", "K=0.5..12", "--resolution", "6",
+                                          "--depth", "2", "--json"],
+                                   env={"ROBUST_CLUSTER": cluster.scheduler_address})
+    assert shown.exit_code == 0, shown.output
+    command = json.loads(shown.stdout)
     local.pop("seconds"), remote.pop("seconds")
     assert json.dumps(local) == json.dumps(remote)
+    assert command["cells"] == local["cells"]
 
 
 @pytest.mark.parametrize(("vary", "words"), [

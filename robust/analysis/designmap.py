@@ -336,7 +336,7 @@ def _refine(axes, resolution: int, depth: int, max_cells: int, decide_all) -> tu
     """The first grid, then the halvings level by level: (cell -> result, decisions made).
     A cell is (level, integer ranges on the finest grid)."""
     step = 2 ** depth
-    grid = [(0, ((i * step, (i + 1) * step),)) for i in range(resolution)]
+    grid: list[tuple[int, tuple]] = [(0, ((i * step, (i + 1) * step),)) for i in range(resolution)]
     if len(axes) == 2:
         grid = [(0, (x, (j * step, (j + 1) * step))) for _, (x,) in grid for j in range(resolution)]
     found = dict(zip(grid, decide_all(grid, 0), strict=True))

@@ -55,7 +55,7 @@ def render_map(result: DesignMap, title: str = "") -> str:
         lines.append(f"  {verdict.value:<9} {result.count(verdict):>5} cells, "
                      f"{to_float(share):7.2%} of the region")
     if result.required_margin is not None:
-        summary = result.summary()["margin"]
+        summary: dict = result.summary()["margin"]  # type: ignore[assignment]
         lines.append(f"  required margin {approx_text(result.required_margin, 6)} proven in "
                      f"{summary['pass']} stable cell(s), refuted in {summary['fail']}, "
                      f"open in {summary['open']}")
@@ -110,7 +110,7 @@ def map_figures(result: DesignMap, title: str = "") -> tuple[bytes, bytes]:
             ax.set_ylim(to_float(second.low), to_float(second.high))
             ax.set_ylabel(_label(second))
         used = [key for key in _STYLE if key in groups]
-        handles = [Patch(facecolor=_STYLE[k][0], edgecolor="#555555", hatch=_STYLE[k][1] or None,
+        handles: list = [Patch(facecolor=_STYLE[k][0], edgecolor="#555555", hatch=_STYLE[k][1] or None,
                          label=_STYLE[k][2]) for k in used]
         if not one and any(c.witness is not None for c in result.cells):
             from matplotlib.lines import Line2D
