@@ -22,12 +22,12 @@ def main() -> None:
     case = load_case(CASE)
     axes = [parse_axis("Ka=2..80", case), parse_axis("J=5u..100u", case)]
     counts = sorted({1, 2, default_workers()})
-    for resolution in (6, 12):
+    for resolution in (12, 24):
         reference = None
         base = None
         for workers in counts:
             start = time.perf_counter()
-            result = design_map(case, axes, resolution=resolution, depth=2, max_cells=4000, workers=workers)
+            result = design_map(case, axes, resolution=resolution, depth=3, max_cells=8000, workers=workers)
             seconds = time.perf_counter() - start
             data = result.as_dict()
             data.pop("seconds")

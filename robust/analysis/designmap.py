@@ -31,9 +31,11 @@ from pathlib import Path
 
 from ..errors import InputError, did_you_mean
 from ..exact.numbers import format_fraction, parse_number
+from ..model.case import parse_case
 from ..model.family import Box
 from .executor import TaskRunner
 from .outcomes import Outcome, Verdict, box_problem, untestable
+from .verdict import decide  # at module level: a worker process imports it once, at its start
 
 __all__ = ["Axis", "DesignMap", "MapCell", "design_map", "parse_axis"]
 
@@ -194,8 +196,6 @@ class DesignMap:
 @functools.lru_cache(maxsize=8)
 def _parsed(text: str, path: str):
     """The case, parsed once per worker process."""
-    from ..model.case import parse_case
-
     return parse_case(text, path)
 
 
@@ -213,8 +213,6 @@ def decide_cell(task: tuple) -> dict:
     """Decide one cell: ``task`` = (case text, case path, design indices, exact ranges as
     strings, boxes per decision, safety seconds, required margin as a string or None).
     Module level and plain in, plain out, so that any worker can run it."""
-    from .verdict import decide
-
     text, path, indices, ranges, max_boxes, max_seconds, required = task
     family = _parsed(text, path).family
     exact = [(Fraction(lo), Fraction(hi)) for lo, hi in ranges]
@@ -238,8 +236,6 @@ def decide_cell(task: tuple) -> dict:
 
 def _margin_outcome(family, indices, ranges, required: Fraction, max_boxes: int, max_seconds: float) -> dict:
     """Is the cell stable with every other tolerance scaled by the required margin?"""
-    from .verdict import decide
-
     box = _cell_box(family, indices, ranges, required)
     problem = box_problem(family, box)
     if problem is not None and problem.kind.value != "degree_loss":
