@@ -56,6 +56,13 @@ file of at most 1,000,000 bytes (checked before it is read; devices and pipes ar
 and `routh` tables whose entries in `ε` would outgrow the display bound leave out their
 bottom rows (`omitted_rows`) while the root counts stay exact.
 
+Batch sign-off: `check`, `margin` and `report` take several case files, or a directory
+(every `*.toml` in it, sorted). Each case prints one line, then a table sums up; `--json`
+prints the list of the per-case documents (each with its `case`); `report -o DIR` writes one
+sub-directory per case, named after its file. A bad file gets its own error line and the
+others still run; the exit code is the worst over the cases. One file alone keeps the
+single-case output.
+
 See [the tutorial](tutorial.md) for worked examples and [case files](case-files.md) for the
 input format.
 """
@@ -206,6 +213,32 @@ NOTES: dict[str, dict[str, list[str]]] = {
             "`DIR/report.html`: the sign-off report, self-contained (one file, figures inside)",
             "`DIR/report.md`: the same report in Markdown, its figures in `DIR/figures/`",
             "`DIR/result.json`: every result as JSON (the document `--json` prints)",
+        ],
+    },
+    "map": {
+        "exit": [
+            "0: the map was made, whatever it shows",
+            "2: bad input: a `--vary` that is not `NAME=LO..HI`, names no parameter, is empty or "
+            "reaches the parameter's physical limits; a first grid larger than `--max-cells`; an "
+            "unusable `-o`",
+        ],
+        "json": [
+            '`axes`: list of `{"name", "low", "high", "unit"}` (exact strings)',
+            '`cells`: list of `{"ranges": {name: [lo, hi]}, "verdict", "witness", "margin"}`; '
+            "`ranges` are exact rational strings, `verdict` is `stable` (proven for every design "
+            "value in the cell and every toleranced value), `unstable` (`witness` gives the "
+            "exact parameter point) or `undecided`; `margin` is null or "
+            '`{"required", "outcome", "reason"}` for a stable cell when the case requires a margin',
+            "`summary`: `cells`, `decisions`, `boxes`, a count and an exact `..._fraction` of the "
+            "design region per verdict, `safety_stop`; one axis: `stable_intervals`",
+            "also: `case`, `title`, `settings`, `seconds`; the same input gives the same JSON "
+            "whatever `--workers` or `--cluster` (apart from `seconds`)",
+        ],
+        "files": [
+            "`DIR/map.png`, `DIR/map.svg`: the map (proven stable, stable with the required "
+            "margin, unstable with its verified points, undecided)",
+            "`DIR/map.json`: the document `--json` prints; `-o` must be new, empty or hold a "
+            "previous map",
         ],
     },
     "demo": {

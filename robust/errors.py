@@ -12,6 +12,7 @@ from collections.abc import Iterable
 __all__ = [
     "BudgetError",
     "CaseError",
+    "ExecutorError",
     "FormulaError",
     "InputError",
     "RobustError",
@@ -160,3 +161,8 @@ class BudgetError(RuntimeError, RobustError):
 
     def __str__(self) -> str:
         return self.problem
+
+
+class ExecutorError(BudgetError):
+    """Work sent to other processes or a cluster could not be finished (a worker lost again
+    after its retry, or the cluster out of reach): the run stops rather than leave work out."""

@@ -8,7 +8,7 @@ on import.
 
 from __future__ import annotations
 
-from . import allocate, cases, report, routh  # noqa: F401  (each registers its commands on main)
+from . import allocate, cases, designmap, report, routh  # noqa: F401  (each registers its commands on main)
 from .core import EXIT_INTERRUPTED, Interrupted, main
 from .routh import EXAMPLE_DISCRETE, EXAMPLE_POLYNOMIAL
 

@@ -20,17 +20,38 @@ from .core import (
 
 
 @main.command("check")
-@click.argument("case", type=CASE_PATH)
+@click.argument("cases", nargs=-1, required=True, type=CASE_PATH)
 @budget_options
 @CERTIFICATE_OPTION
-@click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-def check_command(case: str, max_seconds: float, max_boxes: int, certificate: str | None,
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON document (a list for several cases).")
+def check_command(cases: tuple[str, ...], max_seconds: float, max_boxes: int, certificate: str | None,
                   as_json: bool) -> None:
     """Prove CASE stable over every tolerance, or find a verified counterexample.
 
+    Several CASE files, or a directory of them, give one line per case and a summary table.
+
     Exit codes: 0 robustly stable (and requirements met), 1 unstable, undecided or a
-    requirement failed, 2 bad input or an unusable --certificate path.
+    requirement failed, 2 bad input or an unusable --certificate path (the worst over cases).
     """
+    from .batch import is_batch, run_batch
+
+    if is_batch(cases):
+        if certificate is not None:
+            from ..errors import InputError
+
+            raise InputError("--certificate", "writes the proof of one case", "a single CASE file")
+        run_batch("check", cases, lambda path: _check_case(path, max_seconds, max_boxes, None), as_json)
+    code, document, text, _ = _check_case(cases[0], max_seconds, max_boxes, certificate)
+    if as_json:
+        emit_json(document)
+    else:
+        click.echo(text)
+    sys.exit(code)
+
+
+def _check_case(case: str, max_seconds: float, max_boxes: int, certificate: str | None
+                ) -> tuple[int, dict, str, str]:
+    """(exit code, JSON document, text, batch line) of ``robust check`` on one case."""
     from ..analysis.outcomes import Outcome
     from ..analysis.requirements import check_requirements
     from ..analysis.verdict import check
@@ -56,16 +77,18 @@ def check_command(case: str, max_seconds: float, max_boxes: int, certificate: st
     if certificate is not None:
         written = write_certificate(certificate, loaded, result, max_boxes=max_boxes,
                                      max_seconds=max_seconds)
-    if as_json:
-        extra = {} if written is None else {"certificate": {"file": certificate, **written["summary"]}}
-        emit_json({"case": case, "title": loaded.title, **result.as_dict(),
-                    "requirements": {r.name: r.as_dict() for r in requirements}, **extra})
-    else:
-        click.echo(render_check(loaded, result))
-        if requirements:
-            click.echo(render_requirements(requirements))
-    failed = any(r.outcome is not Outcome.PASS for r in requirements)
-    sys.exit(0 if result.verdict == "stable" and not failed else 1)
+    extra = {} if written is None else {"certificate": {"file": certificate, **written["summary"]}}
+    document = {"case": case, "title": loaded.title, **result.as_dict(),
+                "requirements": {r.name: r.as_dict() for r in requirements}, **extra}
+    text = render_check(loaded, result)
+    if requirements:
+        text += "\n" + render_requirements(requirements)
+    failed = [r.name for r in requirements if r.outcome is not Outcome.PASS]
+    code = 0 if result.verdict == "stable" and not failed else 1
+    line = f"{result.verdict.value} ({result.method_text})"
+    if failed:
+        line += "; requirement not proven met: " + ", ".join(failed)
+    return code, document, text, line
 
 
 @main.command("verify")
@@ -122,7 +145,7 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
 
 
 @main.command("margin")
-@click.argument("case", type=CASE_PATH)
+@click.argument("cases", nargs=-1, required=True, type=CASE_PATH)
 @click.option("--cap", default="100", show_default=True, help="Largest tolerance scale tried.")
 @click.option("--rel-tol", type=click.FloatRange(min=1e-15, max=0.5), default=None,
               help="Relative bracket width asked for [default: 1e-9 interval families, 1e-6 others].")
@@ -132,54 +155,75 @@ def trace_command(case: str, graphml: str | None, as_json: bool) -> None:
 @click.option("--certificate", type=click.Path(dir_okay=False, path_type=str), default=None,
               help="Also write the proof of the bracket's proven end (every tolerance scaled by it) "
                    "to this new JSON file.")
-@click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
-def margin_command(case: str, cap: str, rel_tol: float | None, max_seconds: float, max_boxes: int,
-                   max_tests: int, no_decay: bool, no_criteria: bool, certificate: str | None,
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON document (a list for several cases).")
+def margin_command(cases: tuple[str, ...], cap: str, rel_tol: float | None, max_seconds: float,
+                   max_boxes: int, max_tests: int, no_decay: bool, no_criteria: bool, certificate: str | None,
                    as_json: bool) -> None:
     """Robust margin rho* (how far every tolerance can grow), the decay-rate margin, and the
     worst-case damping ratio; for loops the gain and phase margins, for discrete time the
     spectral radius. Each is a certified bracket with the point that limits it.
 
-    Exit codes: 0 computed (and requirements met), 1 a requirement of the case is not
-    proven met, 2 bad input or an unusable --certificate path.
-    """
-    from ..analysis.margin import margin
-    from ..analysis.outcomes import Outcome
-    from ..analysis.progress import listening
-    from ..exact.numbers import approx_text, to_fraction
-    from ..render.text import render_margin
+    Several CASE files, or a directory of them, give one line per case and a summary table.
 
-    loaded = load(case)
+    Exit codes: 0 computed (and requirements met), 1 a requirement of the case is not
+    proven met, 2 bad input or an unusable --certificate path (the worst over cases).
+    """
+    from ..exact.numbers import to_fraction
+    from .batch import is_batch, run_batch
+
     cap_value = to_fraction(cap, "--cap")
     if cap_value <= 0:
         from ..errors import InputError
 
         raise InputError("--cap", "must be positive", "a number such as 100", cap)
+    settings = dict(cap=cap_value, rel_tol=rel_tol, max_seconds=max_seconds, max_boxes=max_boxes,
+                    max_tests=max_tests, with_decay=not no_decay, with_criteria=not no_criteria)
+    if is_batch(cases):
+        if certificate is not None:
+            from ..errors import InputError
+
+            raise InputError("--certificate", "writes the proof of one case", "a single CASE file")
+        run_batch("margin", cases, lambda path: _margin_case(path, settings, None), as_json)
+    code, document, text, _ = _margin_case(cases[0], settings, certificate)
+    if as_json:
+        emit_json(document)
+    else:
+        click.echo(text)
+    sys.exit(code)
+
+
+def _margin_case(case: str, settings: dict, certificate: str | None) -> tuple[int, dict, str, str]:
+    """(exit code, JSON document, text, batch line) of ``robust margin`` on one case."""
+    from ..analysis.margin import margin
+    from ..analysis.outcomes import Outcome
+    from ..analysis.progress import listening
+    from ..exact.numbers import approx_text
+    from ..render.text import render_margin
+
+    loaded = load(case)
     if certificate is not None:
         from ..render.writer import check_new_file
 
         check_new_file(certificate, "--certificate")
     shown = progress_bar("margin", None, "decision")
     with listening(shown.listen):
-        result = margin(loaded, cap=cap_value, rel_tol=rel_tol, max_seconds=max_seconds,
-                        max_boxes=max_boxes, max_tests=max_tests, with_decay=not no_decay,
-                        with_criteria=not no_criteria)
+        result = margin(loaded, **settings)
     upper = "no failure up to the cap" if result.margin.upper is None \
         else approx_text(result.margin.upper, 6)
-    shown.finish(f"rho* in [{approx_text(result.margin.lower, 6)}, {upper}]")
+    bracket = f"rho* in [{approx_text(result.margin.lower, 6)}, {upper}]"
+    shown.finish(bracket)
     written = None
     if certificate is not None:
         rho = result.margin.lower
         scaled = loaded.family.box.scaled(loaded.family.nominal, rho)
-        written = write_certificate(certificate, loaded, box=scaled,
-                                     scale=rho, max_boxes=max_boxes, max_seconds=max_seconds)
-    if as_json:
-        extra = {} if written is None else {"certificate": {"file": certificate, **written["summary"]}}
-        emit_json({"case": case, "title": loaded.title, **result.as_dict(), **extra})
-    else:
-        click.echo(render_margin(loaded, result))
+        written = write_certificate(certificate, loaded, box=scaled, scale=rho,
+                                     max_boxes=settings["max_boxes"], max_seconds=settings["max_seconds"])
+    extra = {} if written is None else {"certificate": {"file": certificate, **written["summary"]}}
+    document = {"case": case, "title": loaded.title, **result.as_dict(), **extra}
     # a requirement that is not proven met (failed or undecided) fails the command, as in check
-    sys.exit(1 if any(outcome is not Outcome.PASS for _, _, outcome in result.outcomes()) else 0)
+    failed = [name for name, _, outcome in result.outcomes() if outcome is not Outcome.PASS]
+    line = bracket + ("; requirement not proven met: " + ", ".join(failed) if failed else "")
+    return (1 if failed else 0), document, render_margin(loaded, result), line
 
 
 @main.command("rank")

@@ -67,9 +67,10 @@ def _summary_lines(analysis, files) -> list[str]:
 
 
 @main.command("report")
-@click.argument("case", type=CASE_PATH)
+@click.argument("cases", nargs=-1, required=True, type=CASE_PATH)
 @click.option("-o", "--output", "directory", required=True, type=click.Path(path_type=str),
-              help="Directory for report.html, report.md, figures/ and result.json.")
+              help="Directory for report.html, report.md, figures/ and result.json "
+                   "(several cases: one sub-directory per case, named after its file).")
 @click.option("--max-boxes", type=click.IntRange(min=1), default=20_000, show_default=True,
               help="Work budget of the check: sub-boxes/edges to examine.")
 @click.option("--search-boxes", type=click.IntRange(min=1), default=1000, show_default=True,
@@ -82,15 +83,48 @@ def _summary_lines(analysis, files) -> list[str]:
               help="Monte Carlo draws for the yield.")
 @click.option("--seed", type=int, default=0, show_default=True, help="Random seed.")
 @click.option("--json", "as_json", is_flag=True, help="Print the result as one JSON document.")
-def report_command(case: str, directory: str, max_boxes: int, search_boxes: int, search_tests: int,
-                   max_seconds: float, draws: int, seed: int, as_json: bool) -> None:
+def report_command(cases: tuple[str, ...], directory: str, max_boxes: int, search_boxes: int,
+                   search_tests: int, max_seconds: float, draws: int, seed: int, as_json: bool) -> None:
     """Write the sign-off report of CASE into a directory (HTML, Markdown, JSON).
 
+    Several CASE files, or a directory of them, give one report each in a sub-directory of
+    the output directory, one line per case and a summary table.
+
     Exit codes: 0 the report was written (whatever it concludes), 2 bad input or an
-    unusable output directory.
+    unusable output directory (the worst over cases).
     """
+    from .batch import case_paths, is_batch, run_batch
+
+    settings = dict(max_seconds=max_seconds, max_boxes=max_boxes, search_boxes=search_boxes,
+                    search_tests=search_tests, yield_draws=draws, seed=seed)
+    if is_batch(cases):
+        from pathlib import Path
+
+        from ..errors import InputError
+
+        top = Path(directory)
+        if top.is_symlink() or (top.exists() and not top.is_dir()):
+            raise InputError("-o", "is a file or a symbolic link", "a directory for one report per case",
+                             directory)
+        top.mkdir(parents=True, exist_ok=True)
+        stems: dict[str, str] = {}
+        for path in case_paths(cases):
+            stem = Path(path).stem
+            stems[path] = stem if stem not in stems.values() else f"{stem}-{len(stems) + 1}"
+        run_batch("report", cases,
+                  lambda path: _report_case(path, str(top / stems[path]), settings), as_json)
+    _, document, text, _ = _report_case(cases[0], directory, settings)
+    if as_json:
+        emit_json(document)
+    else:
+        click.echo(text)
+
+
+def _report_case(case: str, directory: str, settings: dict) -> tuple[int, dict, str, str]:
+    """(exit code, JSON document, text, batch line) of ``robust report`` on one case."""
     from ..analysis.progress import listening
     from ..analysis.signoff import analyse
+    from ..render.content import outcome, rerun_command
     from ..render.data import result_data
     from ..render.writer import check_directory, write_report
 
@@ -98,17 +132,12 @@ def report_command(case: str, directory: str, max_boxes: int, search_boxes: int,
     loaded = load(case)
     stages = _Stages("report")
     with listening(stages.shown.listen):
-        analysis = analyse(loaded, max_seconds=max_seconds, max_boxes=max_boxes, search_boxes=search_boxes,
-                           search_tests=search_tests, yield_draws=draws, seed=seed, progress=stages)
+        analysis = analyse(loaded, progress=stages, **settings)
         files = write_report(analysis, directory, progress=stages)
     stages.finish()
-    if as_json:
-        emit_json(result_data(analysis))
-    else:
-        from ..render.content import rerun_command
-
-        click.echo("\n".join(_summary_lines(analysis, files)))
-        click.echo("Re-run: " + rerun_command(analysis))
+    text = "\n".join([*_summary_lines(analysis, files), "Re-run: " + rerun_command(analysis)])
+    line = f"sign-off {outcome(analysis)[0].upper()} ({analysis.check.verdict.value}); {files.html}"
+    return 0, result_data(analysis), text, line
 
 
 @main.command("demo")
