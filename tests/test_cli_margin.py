@@ -127,14 +127,14 @@ def test_margin_requirements_that_hold_pass_with_exit_0(tmp_path):
     result = _run(["margin", _write(tmp_path, "ok.toml", _product_case("3", "0.6"))])
     assert result.exit_code == 0
     assert "Requirement margin >= 3: PASS" in result.stdout
-    assert "Requirement decay_rate >= 0.6: PASS" in result.stdout
+    assert "Requirement decay_rate >= 0.6 1/s: PASS" in result.stdout
     # 4/sigma with sigma = 0.7: about 5.714 s (common practice, no source)
     assert "4/sigma = 5.714 s" in result.stdout
 
 
 @pytest.mark.parametrize(("margin_req", "decay_req", "failing"), [
     ("3.5", None, "Requirement margin >= 3.5: FAIL"),
-    (None, "0.75", "Requirement decay_rate >= 0.75: FAIL"),
+    (None, "0.75", "Requirement decay_rate >= 0.75 1/s: FAIL"),
 ])
 def test_margin_requirement_that_fails_exits_1(tmp_path, margin_req, decay_req, failing):
     """margin 3.5 > 10/3 or decay rate 0.75 > 0.7: a FAIL line and exit code 1."""
