@@ -178,7 +178,9 @@ def test_designs_travel_to_other_processes():
 
 
 def run(*args: str):
-    return CliRunner().invoke(main, ["allocate", *args])
+    """The command in this process (--workers 1), unless the test says where to run."""
+    workers = () if "--workers" in args else ("--workers", "1")
+    return CliRunner().invoke(main, ["allocate", *args, *workers])
 
 
 @pytest.mark.parametrize("text", ["", "1%", "1:4", "x%:1", "1%:-2", "1%:4, 1%:3", "150%:1", "1%:4,,2%:1",
@@ -275,3 +277,74 @@ def test_no_passing_design_exits_1():
     result = run(str(CASES / "active_filter.toml"), "--classes", "30%:1, 40%:0.5", "--parts", "C1,C2")
     assert result.exit_code == 1, result.stderr
     assert "No design passes" in result.stdout
+
+
+FILTER_CLASSES = ("--classes", "1%:4, 2%:2, 5%:1, 10%:0.6", "--parts", "C1,C2,kr")
+
+
+def test_two_processes_give_the_same_allocation():
+    """Batches decided on two local processes: the same JSON as in this process (the batch,
+    not where it runs, fixes the result)."""
+    path = str(CASES / "active_filter.toml")
+    here = run(path, *FILTER_CLASSES, "--json")
+    there = run(path, *FILTER_CLASSES, "--json", "--workers", "2")
+    assert here.exit_code == there.exit_code == 0, there.stderr
+
+    def strip(data):
+        return {k: v for k, v in data.items() if not k.endswith("seconds")}
+
+    assert strip(json.loads(here.stdout)) == strip(json.loads(there.stdout))
+
+
+def test_the_chosen_design_is_written_as_a_case_whose_certificate_verifies(tmp_path):
+    """--write-case writes the case with the allocated tolerances (every other line as
+    written); --certificate proves it, and robust verify confirms the proof against that file.
+    The written ranges are nominal +-5 % and +-10 % exactly (the classes' definition)."""
+    path = CASES / "active_filter.toml"
+    out, proof = tmp_path / "chosen.toml", tmp_path / "chosen.json"
+    result = run(str(path), *FILTER_CLASSES, "--write-case", str(out), "--certificate", str(proof))
+    assert result.exit_code == 0, result.stderr
+    written = load_case(out)
+    original = load_case(path)
+    for name, tolerance in (("C1", Fraction(5, 100)), ("C2", Fraction(5, 100)), ("kr", Fraction(10, 100))):
+        part = written.parameter(name)
+        nominal = original.parameter(name).nominal
+        assert (part.low, part.high) == (nominal * (1 - tolerance), nominal * (1 + tolerance))
+    for name in ("R1", "R2", "wt"):  # untouched
+        assert written.parameter(name) == original.parameter(name)
+    pairs = zip(path.read_text().splitlines(), out.read_text().splitlines(), strict=True)
+    changed = [line for a, line in pairs if a != line]
+    assert len(changed) == 3 and all(line.endswith("# chosen by robust allocate") for line in changed)
+    check = CliRunner().invoke(main, ["verify", str(proof), "--case", str(out)])
+    assert check.exit_code == 0 and check.stdout.startswith("VALID"), check.stdout
+
+
+def test_a_part_written_as_a_range_gets_its_nominal_and_tolerance(tmp_path):
+    """A range without a nominal is replaced by the nominal it implied (its middle) and the
+    class: the written file reads back as that exact range."""
+    text = ('title = "t"\n[parameters.a]\nrange = ["1.8", "2.2"]\n[parameters.b]\nnominal = "3"\n'
+            'tolerance = "1%"\n[polynomial]\nexpression = "s^2 + a*s + b"\n')
+    case_path = tmp_path / "range.toml"
+    case_path.write_text(text)
+    out = tmp_path / "out.toml"
+    result = run(str(case_path), "--classes", "5%:1, 20%:0.5", "--parts", "a,b", "--write-case", str(out))
+    assert result.exit_code == 0, result.stderr
+    written = load_case(out)
+    assert written.parameter("a").nominal == 2 and written.parameter("a").tolerance == "20%"
+    assert (written.parameter("a").low, written.parameter("a").high) == (Fraction(8, 5), Fraction(12, 5))
+
+
+def test_certificate_without_the_written_case_is_refused(tmp_path):
+    proof = str(tmp_path / "p.json")
+    result = run(str(CASES / "active_filter.toml"), *FILTER_CLASSES, "--certificate", proof)
+    assert result.exit_code == 2
+    assert result.stderr.strip() == ("robust: error: --certificate: the proof of the chosen design needs the "
+                                     "case file it proves; expected --write-case FILE as well")
+
+
+def test_the_written_case_never_overwrites_a_file(tmp_path):
+    existing = tmp_path / "exists.toml"
+    existing.write_text("keep")
+    result = run(str(CASES / "active_filter.toml"), *FILTER_CLASSES, "--write-case", str(existing))
+    assert result.exit_code == 2 and existing.read_text() == "keep"
+    assert "robust never overwrites it" in result.stderr

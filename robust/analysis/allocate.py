@@ -259,6 +259,11 @@ class Allocation:
         """name -> class text of a design."""
         return {p.name: p.options[i].text for p, i in zip(self.parts, design, strict=True)}
 
+    def ranges_of(self, design: Sequence[int]) -> dict[str, tuple[Fraction, str, Fraction, Fraction]]:
+        """name -> (nominal, class text, low, high) of a design: what its case file says."""
+        return {p.name: (p.nominal, p.options[i].text, *p.interval(i))
+                for p, i in zip(self.parts, design, strict=True)}
+
     def as_dict(self) -> dict[str, object]:
         """JSON form: exact strings for numbers."""
         decision = self.decision

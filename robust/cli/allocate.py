@@ -6,7 +6,7 @@ import sys
 
 import click
 
-from .core import CASE_PATH, emit_json, load, main, progress_bar
+from .core import CASE_PATH, emit_json, executor_options, load, main, progress_bar, write_certificate
 
 
 @main.command("allocate")
@@ -22,9 +22,17 @@ from .core import CASE_PATH, emit_json, load, main, progress_bar
               help="Work budget: sub-boxes per decision.")
 @click.option("--max-seconds", type=click.FloatRange(min=0.1), default=60.0, show_default=True,
               help="Safety stop per decision in wall-clock seconds (reported when it fires).")
+@executor_options
+@click.option("--write-case", "case_out", type=click.Path(dir_okay=False, path_type=str), default=None,
+              help="Also write the chosen design as a new case file: CASE with the allocated "
+                   "tolerances, every other line as written.")
+@click.option("--certificate", type=click.Path(dir_okay=False, path_type=str), default=None,
+              help="Also write the proof of the chosen design to this new JSON file (needs "
+                   "--write-case; re-check it with robust verify FILE --case THAT-CASE).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON document.")
 def allocate_command(case: str, classes_text: str, parts: str | None, max_decisions: int, max_boxes: int,
-                     max_seconds: float, as_json: bool) -> None:
+                     max_seconds: float, workers: int | None, cluster: str | None, case_out: str | None,
+                     certificate: str | None, as_json: bool) -> None:
     """Choose a tolerance class per part at the least total cost such that CASE stays robustly
     stable and meets its requirements, every design decided by proof.
 
@@ -33,27 +41,62 @@ def allocate_command(case: str, classes_text: str, parts: str | None, max_decisi
     design counts as not passing. A failure rules out every design whose box holds its
     witness, without deciding it.
 
+    Designs are decided in batches on local processes (--workers) or a dask cluster
+    (--cluster); the batches, not where they run, fix the result.
+
     Exit codes: 0 a passing design found, 1 none passes (or none proven within the budget),
     2 bad input.
     """
     from ..analysis.allocate import allocate, allocation_parts, parse_classes
+    from ..analysis.executor import TaskRunner
     from ..analysis.progress import listening
+    from ..errors import InputError
     from ..exact.numbers import approx_text
     from ..render.allocation import render_allocation
+    from ..render.writer import check_new_file
 
+    if certificate is not None and case_out is None:
+        raise InputError("--certificate", "the proof of the chosen design needs the case file it proves",
+                         "--write-case FILE as well")
+    for path, what in ((case_out, "--write-case"), (certificate, "--certificate")):
+        if path is not None:
+            check_new_file(path, what)
     loaded = load(case)
     classes = parse_classes(classes_text)
     names = None if parts is None else tuple(name.strip() for name in parts.split(","))
     allocation_parts(loaded, classes, names)  # bad input fails here, before any analysis
     shown = progress_bar("allocate", None, "decision")
     shown.brackets = False
-    with listening(shown.listen):
+    with listening(shown.listen), TaskRunner(workers, cluster) as runner:
         result = allocate(loaded, classes, names, max_boxes=max_boxes, max_decisions=max_decisions,
-                          max_seconds=max_seconds)
+                          max_seconds=max_seconds, run=runner.run)
     shown.finish(f"{len(result.log)} designs decided"
                  + ("" if result.cost is None else f", cheapest passing costs {approx_text(result.cost, 8)}"))
+    written = _write_design(loaded, result, case_out, certificate, max_boxes, max_seconds) \
+        if case_out is not None and result.chosen is not None else None
     if as_json:
-        emit_json({"case": case, "title": loaded.title, **result.as_dict()})
+        emit_json({"case": case, "title": loaded.title, **result.as_dict(), "written_case": written})
     else:
         click.echo(render_allocation(loaded, result))
+        if written is not None:
+            click.echo(f"Chosen design written to {written}: check, report or sign it off like any case")
     sys.exit(0 if result.chosen is not None else 1)
+
+
+def _write_design(loaded, result, case_out: str, certificate: str | None, max_boxes: int,
+                  max_seconds: float) -> str:
+    """Write the chosen design as a case file (and its certificate); return the file's path."""
+    from pathlib import Path
+
+    from ..model.case import load_case
+    from ..model.rewrite import with_tolerances
+    from ..render.writer import write_new_file
+
+    changes = result.ranges_of(result.chosen)
+    text = with_tolerances(Path(loaded.path).read_text(encoding="utf-8"), changes,
+                           "chosen by robust allocate")
+    write_new_file(case_out, text.encode("utf-8"), "--write-case")
+    if certificate is not None:
+        write_certificate(certificate, load_case(case_out), max_boxes=max(max_boxes, 20_000),
+                          max_seconds=max_seconds)
+    return case_out

@@ -4,17 +4,7 @@ from __future__ import annotations
 
 import click
 
-from .core import CASE_PATH, emit_json, load, main, progress_bar
-
-
-def executor_options(func):
-    """--workers and --cluster: where many independent decisions run (same result anywhere)."""
-    func = click.option("--cluster", default=None, envvar="ROBUST_CLUSTER", metavar="ADDRESS",
-                        help="Run on a dask.distributed cluster, e.g. tcp://10.0.0.5:8786 "
-                             "[default: $ROBUST_CLUSTER, else local; needs robust[cluster]].")(func)
-    func = click.option("--workers", type=click.IntRange(min=1), default=None,
-                        help="Local worker processes; 1 runs in this process [default: all cores].")(func)
-    return func
+from .core import CASE_PATH, emit_json, executor_options, load, main, progress_bar
 
 
 @main.command("map")
