@@ -23,6 +23,7 @@ import pytest
 from robust.analysis.criteria import REQUIREMENT_OF
 from robust.model.case import load_case
 from robust.render import figures
+from robust.render.fmt import units_of
 from robust.render.figdata import loop_mark, loop_values, sample_draws
 from robust.render.loopfigure import loop_response_picture
 
@@ -127,8 +128,10 @@ def test_limited_by_lines_name_each_witnessed_criterion(reports):
     text = "".join(_page(files).text)
     witnessed = [c for c in analysis.margin.criteria if c.bracket.witness is not None]
     assert {c.measure.name for c in witnessed} >= {"gain_margin_db", "phase_margin_deg", "spectral_radius"}
+    units = units_of(analysis.case)  # each value with its part's unit, as every table shows it
+    assert units  # the case gives units: the lines below show them
     for criterion in witnessed:
-        assert f"{criterion.measure.words.capitalize()} limited by: {criterion.limit_text()}." in text
+        assert f"{criterion.measure.words.capitalize()} limited by: {criterion.limit_text(units)}." in text
 
 
 def test_discrete_polynomial_section_shows_z_and_the_unit_circle(reports):
@@ -196,7 +199,7 @@ def test_root_cloud_of_a_z_case_has_the_unit_circle(reports, monkeypatch):
     picture = figures.root_cloud_picture(case, draws)
     assert "unit circle" in picture.alt
     axis = captured[-1].axes[0]
-    assert axis.get_xlabel() == "Re z" and axis.get_ylabel() == "Im z"
+    assert axis.get_xlabel() == "Re z (no unit)" and axis.get_ylabel() == "Im z (no unit)"
     labels = [line.get_label() for line in axis.get_lines()]
     assert "unit circle |z| = 1" in labels and "imaginary axis" not in labels
     # the roots plotted are those of the polynomial in z: inside the circle (the case is stable)
