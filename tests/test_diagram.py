@@ -313,3 +313,13 @@ def test_a_unit_mistake_in_the_shipped_drive_is_caught(tmp_path):
     line = result.stderr.strip()
     assert len(line.splitlines()) == 1
     assert "polynomial.diagram.equations[7]" in line and "J*s" in line and "B" in line
+
+
+def test_a_diagram_case_is_hashable_and_travels_to_other_processes():
+    """Like every case: hashable (caches key on it) and equal after pickling (the executor
+    sends work to other processes)."""
+    import pickle
+
+    case = load_case(ROOT / "cases" / "cascaded_motor_drive.toml")
+    assert hash(case) == hash(pickle.loads(pickle.dumps(case)))
+    assert pickle.loads(pickle.dumps(case)) == case

@@ -70,7 +70,8 @@ class Diagram:
     edges
         ``(i, j, numerator, denominator)``: signal j enters equation i with the gain
         numerator / denominator (exact sparse polynomials over the variable and the
-        parameters, as in :mod:`robust.exact.sparse`).
+        parameters, as in :mod:`robust.exact.sparse`, held as sorted item tuples so that a
+        diagram, like the case that holds it, is hashable).
     slots
         The slots of those polynomials: the variable, then the parameter names.
     """
@@ -78,7 +79,7 @@ class Diagram:
     equations: tuple[str, ...]
     signals: tuple[str, ...]
     inputs: tuple[str, ...]
-    edges: tuple[tuple[int, int, dict, dict], ...]
+    edges: tuple[tuple[int, int, tuple, tuple], ...]
     slots: tuple[str, ...]
 
     def loops(self) -> tuple[tuple[int, ...], ...]:
@@ -103,7 +104,7 @@ class Diagram:
         product = 1
         for k, j in enumerate(loop):
             num, den = gains[(loop[(k + 1) % len(loop)], j)]
-            product *= sympy_of(num, self.slots) / sympy_of(den, self.slots)
+            product *= sympy_of(dict(num), self.slots) / sympy_of(dict(den), self.slots)
         import sympy
 
         return str(sympy.factor(product)).replace("**", "^")
@@ -195,7 +196,8 @@ def diagram_polynomial(reader: _Reader, table: object, names: tuple[str, ...], v
         gains = _gains(num, den, first, signals, names, len(defined),
                        lambda p, e, i=i: fail(i, p, e, equations[i]))
         rows.append(([gains.get(j, {}) for j in range(len(defined))], den))
-        edges += [(i, j, gain, den) for j, gain in sorted(gains.items())]
+        edges += [(i, j, tuple(sorted(gain.items())), tuple(sorted(den.items())))
+                  for j, gain in sorted(gains.items())]
     try:
         quotient = interconnection_polynomial(rows, work)
     except InputError as error:
