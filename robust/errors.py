@@ -165,4 +165,7 @@ class BudgetError(RuntimeError, RobustError):
 
 class ExecutorError(BudgetError):
     """Work sent to other processes or a cluster could not be finished (a worker lost again
-    after its retry, or the cluster out of reach): the run stops rather than leave work out."""
+    after its retry, or the cluster out of reach): the run stops rather than leave work out.
+    Not bad input, nor a verdict: exit code 3."""
+
+    exit_code = 3

@@ -348,3 +348,72 @@ def test_the_written_case_never_overwrites_a_file(tmp_path):
     result = run(str(CASES / "active_filter.toml"), *FILTER_CLASSES, "--write-case", str(existing))
     assert result.exit_code == 2 and existing.read_text() == "keep"
     assert "robust never overwrites it" in result.stderr
+
+
+def test_a_failing_tightest_design_ends_the_search_at_once():
+    """Ten parts, four classes (about a million designs) and an unstable polynomial (s^2 with
+    a negative s coefficient fails Routh at every point: common practice, no source): the
+    tightest design's witness rules out every design, so one decision ends the search."""
+    parts = "".join(f'[parameters.p{i}]\nnominal = "1"\ntolerance = "1%"\n' for i in range(10))
+    total = " + ".join(f"p{i}" for i in range(10))
+    case = parse_case(f'title = "t"\n{parts}[polynomial]\nexpression = "s^2 - ({total})*s + 1"\n')
+    result = allocate(case, parse_classes("1%:4, 2%:2, 5%:1, 10%:0.5"))
+    assert result.chosen is None and len(result.log) == 1
+    assert result.pruned == 4**10 - 1 and not result.exhausted
+
+
+def test_the_search_stops_after_passing_over_its_limit(monkeypatch):
+    """Passing over ruled-out designs is work too: past the limit the search stops and says so."""
+    import robust.analysis.allocate as module
+
+    monkeypatch.setattr(module, "MAX_PASSED_OVER", 5)
+    parts = "".join(f'[parameters.p{i}]\nnominal = "1"\ntolerance = "1%"\n' for i in range(4))
+    total = " + ".join(f"p{i}" for i in range(4))
+    # stable exactly while the sum of the parts stays below 4.3 (Routh, degree 2: both
+    # coefficients positive): the cheap, loose designs fail, and their witnesses rule out
+    # many others, which the search passes over until its limit
+    case = parse_case(f'title = "t"\n{parts}[polynomial]\nexpression = "s^2 + (4.3 - ({total}))*s + 1"\n')
+    result = allocate(case, parse_classes("1%:4, 2%:2, 5%:1, 10%:0.5, 20%:0.1"))
+    assert result.chosen is None and result.passed_over_limit and result.exhausted and result.pruned == 5
+    assert "passed over 5 designs" in render_allocation(case, result)
+
+
+@pytest.mark.parametrize("address", ["garbage", "tcp://[::1", "tcp://host", "tcp://host:99999", "host:port"])
+def test_a_bad_cluster_address_is_one_line_before_any_work(address):
+    result = run(str(CASES / "active_filter.toml"), *FILTER_CLASSES, "--cluster", address)
+    assert result.exit_code == 2 and result.stdout == ""
+    assert result.stderr.strip().startswith("robust: error: --cluster: not a scheduler address")
+
+
+def test_a_case_that_cannot_be_rewritten_is_refused_before_the_search(tmp_path):
+    """A range over several lines is not rewritten by guesswork: one line, exit 2, no analysis."""
+    text = ('title = "t"\n[parameters.a]\nrange = [\n  "1.8",\n  "2.2",\n]\n[parameters.b]\nnominal = "3"\n'
+            'tolerance = "1%"\n[polynomial]\nexpression = "s^2 + a*s + b"\n')
+    path = tmp_path / "multi.toml"
+    path.write_text(text)
+    out = str(tmp_path / "o.toml")
+    result = run(str(path), "--classes", "5%:1, 20%:0.5", "--parts", "a,b", "--write-case", out)
+    assert result.exit_code == 2 and result.stdout == ""
+    assert "parameters.a.range spans several lines" in result.stderr
+    assert not (tmp_path / "o.toml").exists()
+
+
+def test_quoted_keys_and_a_byte_order_mark_are_rewritten(tmp_path):
+    """A file saved with a UTF-8 byte order mark and a quoted key ("tolerance" = ...) reads as
+    any case (TOML 1.0 allows quoted keys) and is rewritten as such."""
+    text = ('title = "t"\n[parameters.a]\nnominal = "2"\n"tolerance" = "1%"\n[parameters.b]\nnominal = "3"\n'
+            'tolerance = "1%"\n[polynomial]\nexpression = "s^2 + a*s + b"\n')
+    path = tmp_path / "bom.toml"
+    path.write_bytes(b"\xef\xbb\xbf" + text.encode())
+    out = tmp_path / "out.toml"
+    result = run(str(path), "--classes", "5%:1, 20%:0.5", "--parts", "a,b", "--write-case", str(out))
+    assert result.exit_code == 0, result.stderr
+    written = load_case(out)
+    assert written.parameter("a").tolerance == "20%" and written.parameter("b").tolerance == "20%"
+
+
+def test_one_file_for_both_outputs_is_refused(tmp_path):
+    same = str(tmp_path / "x.toml")
+    result = run(str(CASES / "active_filter.toml"), *FILTER_CLASSES, "--write-case", same,
+                 "--certificate", same)
+    assert result.exit_code == 2 and "--certificate: the same file as --write-case" in result.stderr

@@ -51,6 +51,9 @@ __all__ = ["Allocation", "DesignDecision", "DesignTask", "PartClasses", "Toleran
 
 #: Decisions in one batch: fixed, so that the designs decided do not depend on who runs them.
 DEFAULT_BATCH = 4
+#: Designs the search may pass over as ruled out (without deciding them) before it stops:
+#: with many parts the designs number classes^parts, and walking them costs work too.
+MAX_PASSED_OVER = 200_000
 _CLASSES_EXPECTED = 'comma-separated TOLERANCE:COST pairs such as "1%:4, 2%:2, 5%:1"'
 
 Runner = Callable[[Callable, list], list]
@@ -218,7 +221,8 @@ class Allocation:
     ``chosen`` is the cheapest design proven to pass (option index per part, 0 the tightest)
     or None; ``log`` every decision in order; ``candidates`` the number of designs,
     ``pruned`` those ruled out by a failure without a decision; ``exhausted`` says the
-    decision budget ran out before the search ended.
+    decision budget (or :data:`MAX_PASSED_OVER`, ``passed_over_limit``) ran out before the
+    search ended.
     """
 
     parts: tuple[PartClasses, ...]
@@ -233,6 +237,7 @@ class Allocation:
     exhausted: bool
     batch: int
     max_decisions: int
+    passed_over_limit: bool = False
 
     @property
     def decision(self) -> DesignDecision | None:
@@ -284,6 +289,7 @@ class Allocation:
             "search": {"candidates": self.candidates, "decided": len(self.log), "pruned": self.pruned,
                        "undecided": sum(1 for d in self.log if d.decision.outcome is Outcome.OPEN),
                        "undecided_cheaper": self.undecided_cheaper, "exhausted": self.exhausted,
+                       "passed_over_limit": self.passed_over_limit,
                        "batch": self.batch, "max_decisions": self.max_decisions,
                        "safety_stop": self.safety_stop},
             "decisions": [{"classes": self.classes_of(d.design), "cost": format_fraction(d.cost),
@@ -498,8 +504,11 @@ def allocate(case, classes: Sequence[ToleranceClass], parts: Sequence[str] | Non
 
     decide_all([tightest])
     order = _in_cost_order(parts_classes)
-    chosen, pruned, exhausted = None, 0, False
+    chosen, pruned, exhausted, passed_over_limit = None, 0, False, False
     while chosen is None and not exhausted:
+        if ruled_out(tightest):  # the tightest design fails, and with it every design
+            pruned = _count(parts_classes) - len(known)
+            break
         waiting: list[tuple[int, ...]] = []
         known_pass = None  # a design decided out of turn (the all-tightest) reached in order
         room = min(batch, max_decisions - len(log))
@@ -511,6 +520,9 @@ def allocate(case, classes: Sequence[ToleranceClass], parts: Sequence[str] | Non
                 continue
             if ruled_out(design):
                 pruned += 1
+                if pruned >= MAX_PASSED_OVER:
+                    exhausted = passed_over_limit = True
+                    break
                 continue
             if room <= 0:  # a design to decide and no budget left
                 exhausted = True
@@ -535,7 +547,7 @@ def allocate(case, classes: Sequence[ToleranceClass], parts: Sequence[str] | Non
     cost = None if chosen is None else design_cost(parts_classes, chosen)
     return Allocation(tuple(parts_classes), chosen, cost, design_cost(parts_classes, tightest), written,
                       written_decision, tuple(log), _count(parts_classes), pruned, exhausted, batch,
-                      max_decisions)
+                      max_decisions, passed_over_limit)
 
 
 def _written_design(parts: Sequence[PartClasses]) -> tuple[int, ...] | None:

@@ -22,17 +22,16 @@ required margin about their nominal values: PASS, FAIL or OPEN per cell.
 from __future__ import annotations
 
 import functools
-import hashlib
 import time
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
-from pathlib import Path
 
 from ..errors import InputError, did_you_mean
 from ..exact.numbers import format_fraction, parse_number
 from ..model.case import parse_case
 from ..model.family import Box
+from ..model.rewrite import source_text
 from .executor import TaskRunner
 from .outcomes import Outcome, Verdict, box_problem, untestable
 from .verdict import decide  # at module level: a worker process imports it once, at its start
@@ -249,18 +248,6 @@ def _margin_outcome(family, indices, ranges, required: Fraction, max_boxes: int,
 
 # -- the map ------------------------------------------------------------------------------
 
-def _source_text(case) -> str:
-    """The case file's text, checked to be the bytes the case was read from."""
-    try:
-        raw = Path(case.path).read_bytes()
-    except OSError as error:
-        raise InputError("case", f"cannot read the case file again ({error.strerror})",
-                         "a case loaded from a readable file, or text=", case.path) from None
-    if hashlib.sha256(raw).hexdigest() != case.sha256:
-        raise InputError("case", "the case file changed since it was read", "run again", case.path)
-    return raw.decode("utf-8-sig")
-
-
 def _touch(a: tuple, b: tuple) -> bool:
     """Closed integer boxes ((lo, hi) per axis) meet."""
     return all(alo <= bhi and blo <= ahi for (alo, ahi), (blo, bhi) in zip(a, b, strict=True))
@@ -301,7 +288,7 @@ def design_map(case, axes: Sequence[Axis], resolution: int = DEFAULT_RESOLUTION,
     if not 1 <= len(axes) <= 2 or len({a.name for a in axes}) != len(axes):
         raise InputError("--vary", "give one or two different design parameters", "--vary A=.. [--vary B=..]",
                          [a.name for a in axes])
-    text = _source_text(case) if text is None else text
+    text = source_text(case) if text is None else text
     indices = tuple(a.index for a in axes)
     required = case.requirements.margin
     fine = resolution * 2 ** depth  # the finest grid, in whose integer units every cell lies

@@ -25,12 +25,14 @@ from __future__ import annotations
 
 import math
 import os
+import re
 from collections.abc import Callable, Sequence
 from typing import Any, TypeVar
 
 from ..errors import ExecutorError, InputError
 
-__all__ = ["CLUSTER_VARIABLE", "ExecutorError", "TaskRunner", "chunks_of", "default_workers", "run_tasks"]
+__all__ = ["CLUSTER_VARIABLE", "ExecutorError", "TaskRunner", "check_cluster_address", "chunks_of",
+           "default_workers", "run_tasks"]
 
 #: The environment variable the command line reads a cluster address from.
 CLUSTER_VARIABLE = "ROBUST_CLUSTER"
@@ -106,6 +108,31 @@ def run_tasks(function: Callable[[Item], Result], items: Sequence[Item], workers
         return runner.run(function, items, progress)
 
 
+#: A scheduler address as dask.distributed takes it: an optional protocol, a host (a name, an
+#: IPv4 address or an IPv6 address in brackets) and a port.
+_ADDRESS = re.compile(r"(?:[a-z][a-z0-9+]*://)?(?:\[[0-9A-Fa-f:.]+\]|[A-Za-z0-9._-]+):[0-9]{1,5}\Z")
+
+
+def check_cluster_address(address: str) -> str:
+    """The address, checked before any work: ``tcp://HOST:PORT`` (or ``HOST:PORT``).
+
+    Raises
+    ------
+    InputError
+        For anything else, with what to write instead.
+
+    Examples
+    --------
+    >>> check_cluster_address("tcp://10.0.0.5:8786")
+    'tcp://10.0.0.5:8786'
+    """
+    if not isinstance(address, str) or not _ADDRESS.match(address.strip()) \
+            or int(address.rsplit(":", 1)[1]) > 65535:
+        raise InputError("--cluster", "not a scheduler address", "tcp://HOST:PORT, e.g. tcp://10.0.0.5:8786",
+                         address)
+    return address.strip()
+
+
 class TaskRunner:
     """Where tasks run, kept open for several calls of :meth:`run` (use it in a ``with``).
 
@@ -115,6 +142,8 @@ class TaskRunner:
     def __init__(self, workers: int | None = None, cluster: str | None = None) -> None:
         if workers is not None and workers < 1:
             raise InputError("--workers", "must be at least 1", "a positive number of processes", workers)
+        if cluster is not None:
+            check_cluster_address(cluster)
         self.workers = workers if workers is not None else default_workers()
         self.cluster = cluster
         self._pool: Any = None
@@ -206,7 +235,7 @@ class TaskRunner:
         if self._client is None:
             try:
                 self._client = Client(address, timeout="20s", set_as_default=False)
-            except (OSError, TimeoutError) as error:
+            except (OSError, TimeoutError, ValueError, TypeError) as error:
                 raise ExecutorError(f"--cluster: cannot reach the scheduler at {address} ({error})") from None
         futures = [self._client.submit(_run_chunk, function, part, retries=DASK_RETRIES, pure=False)
                    for part in parts]

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import sys
+from pathlib import Path
 
 import click
 
@@ -45,13 +46,14 @@ def allocate_command(case: str, classes_text: str, parts: str | None, max_decisi
     (--cluster); the batches, not where they run, fix the result.
 
     Exit codes: 0 a passing design found, 1 none passes (or none proven within the budget),
-    2 bad input.
+    2 bad input, 3 the work could not be finished (a worker process or the cluster lost).
     """
     from ..analysis.allocate import allocate, allocation_parts, parse_classes
     from ..analysis.executor import TaskRunner
     from ..analysis.progress import listening
     from ..errors import InputError
     from ..exact.numbers import approx_text
+    from ..model.rewrite import source_text, with_tolerances
     from ..render.allocation import render_allocation
     from ..render.writer import check_new_file
 
@@ -61,10 +63,19 @@ def allocate_command(case: str, classes_text: str, parts: str | None, max_decisi
     for path, what in ((case_out, "--write-case"), (certificate, "--certificate")):
         if path is not None:
             check_new_file(path, what)
+    if case_out is not None and certificate is not None and \
+            Path(case_out).absolute().resolve() == Path(certificate).absolute().resolve():
+        raise InputError("--certificate", "the same file as --write-case", "two different file names",
+                         certificate)
     loaded = load(case)
     classes = parse_classes(classes_text)
     names = None if parts is None else tuple(name.strip() for name in parts.split(","))
-    allocation_parts(loaded, classes, names)  # bad input fails here, before any analysis
+    candidates = allocation_parts(loaded, classes, names)  # bad input fails here, before any analysis
+    text = None
+    if case_out is not None:  # the rewrite is tried on the tightest design before any analysis
+        text = source_text(loaded)
+        with_tolerances(text, {p.name: (p.nominal, p.options[0].text, *p.interval(0)) for p in candidates},
+                        "chosen by robust allocate", loaded.path)
     shown = progress_bar("allocate", None, "decision")
     shown.brackets = False
     with listening(shown.listen), TaskRunner(workers, cluster) as runner:
@@ -72,8 +83,8 @@ def allocate_command(case: str, classes_text: str, parts: str | None, max_decisi
                           max_seconds=max_seconds, run=runner.run)
     shown.finish(f"{len(result.log)} designs decided"
                  + ("" if result.cost is None else f", cheapest passing costs {approx_text(result.cost, 8)}"))
-    written = _write_design(loaded, result, case_out, certificate, max_boxes, max_seconds) \
-        if case_out is not None and result.chosen is not None else None
+    written = _write_design(loaded, result, text, case_out, certificate, max_boxes, max_seconds) \
+        if case_out is not None and text is not None and result.chosen is not None else None
     if as_json:
         emit_json({"case": case, "title": loaded.title, **result.as_dict(), "written_case": written})
     else:
@@ -83,19 +94,15 @@ def allocate_command(case: str, classes_text: str, parts: str | None, max_decisi
     sys.exit(0 if result.chosen is not None else 1)
 
 
-def _write_design(loaded, result, case_out: str, certificate: str | None, max_boxes: int,
+def _write_design(loaded, result, text: str, case_out: str, certificate: str | None, max_boxes: int,
                   max_seconds: float) -> str:
     """Write the chosen design as a case file (and its certificate); return the file's path."""
-    from pathlib import Path
-
     from ..model.case import load_case
     from ..model.rewrite import with_tolerances
     from ..render.writer import write_new_file
 
-    changes = result.ranges_of(result.chosen)
-    text = with_tolerances(Path(loaded.path).read_text(encoding="utf-8"), changes,
-                           "chosen by robust allocate")
-    write_new_file(case_out, text.encode("utf-8"), "--write-case")
+    chosen = with_tolerances(text, result.ranges_of(result.chosen), "chosen by robust allocate", loaded.path)
+    write_new_file(case_out, chosen.encode("utf-8"), "--write-case")
     if certificate is not None:
         write_certificate(certificate, load_case(case_out), max_boxes=max(max_boxes, 20_000),
                           max_seconds=max_seconds)

@@ -32,7 +32,8 @@ def map_command(case: str, varied: tuple[str, ...], resolution: int, depth: int,
     toleranced value of the others, which are refuted (a verified witness), and which are
     undecided; boundary cells are refined.
 
-    Exit codes: 0 the map was made (whatever it shows), 2 bad input or an unusable -o.
+    Exit codes: 0 the map was made (whatever it shows), 2 bad input or an unusable -o,
+    3 the work could not be finished (a worker process or the cluster lost).
     """
     from ..analysis.designmap import design_map, parse_axis
     from ..errors import InputError

@@ -1,4 +1,5 @@
-"""A case file's text with some parts given new tolerances, everything else as written.
+"""A case file's text read again, and that text with some parts given new tolerances,
+everything else as written.
 
 ``robust allocate`` hands the engineer the chosen design as a case file of its own, to check,
 report, certify and sign off like any other. Only the lines that set the range of an
@@ -10,16 +11,37 @@ says other than the design that was proven.
 
 from __future__ import annotations
 
+import hashlib
 import re
 from collections.abc import Mapping
 from fractions import Fraction
+from pathlib import Path
 
-from ..errors import InputError
+from ..errors import CaseError, InputError
 from ..exact.numbers import format_fraction
 
-__all__ = ["with_tolerances"]
+__all__ = ["source_text", "with_tolerances"]
 
-_KEY = re.compile(r"\s*(tolerance|range|nominal)\s*=")
+_KEY = re.compile(r"""\s*["']?(tolerance|range|nominal)["']?\s*=""")
+
+
+def source_text(case) -> str:
+    """The case file's text, checked to be the bytes the case was read from (a file edited
+    since then is refused: the work done was for the old one).
+
+    Raises
+    ------
+    InputError
+        When the file cannot be read again or has changed.
+    """
+    try:
+        raw = Path(case.path).read_bytes()
+    except OSError as error:
+        raise InputError("case", f"cannot read the case file again ({error.strerror})",
+                         "a case loaded from a readable file", case.path) from None
+    if hashlib.sha256(raw).hexdigest() != case.sha256:
+        raise InputError("case", "the case file changed since it was read", "run again", case.path)
+    return raw.decode("utf-8-sig")
 
 
 def _section(lines: list[str], name: str) -> tuple[int, int]:
@@ -35,7 +57,7 @@ def _section(lines: list[str], name: str) -> tuple[int, int]:
 
 
 def with_tolerances(text: str, changes: Mapping[str, tuple[Fraction, str, Fraction, Fraction]],
-                    note: str) -> str:
+                    note: str, path: str = "<case>") -> str:
     """``text`` with each part ``name -> (nominal, tolerance text, low, high)`` set to that
     tolerance, which must give exactly the range [low, high].
 
@@ -48,6 +70,8 @@ def with_tolerances(text: str, changes: Mapping[str, tuple[Fraction, str, Fracti
         range), the new tolerance, such as ``"5%"``, and the range it must give.
     note
         A comment put beside each changed line (``# chosen by ...``).
+    path
+        The file the text came from, for messages.
 
     Raises
     ------
@@ -78,7 +102,14 @@ def with_tolerances(text: str, changes: Mapping[str, tuple[Fraction, str, Fracti
         at = first - start - 1  # the first removed line's place among the kept ones
         lines[start + 1:end] = kept[:at] + new + kept[at:]
     out = "\n".join(lines) + "\n"
-    read = parse_case(out, "<allocated case>")
+    try:
+        read = parse_case(out, path)
+    except CaseError as error:
+        raise InputError("--write-case", f"{path} rewritten with the allocated tolerances does not read back "
+                         f"({error.field + ': ' if error.field else ''}{error.problem}"
+                         f"{f' on line {error.line}' if error.line else ''})",
+                         "[parameters.NAME] tables with nominal and tolerance on lines of their own, "
+                         "or no --write-case") from None
     for name, (_, _, low, high) in changes.items():
         part = read.parameter(name)
         if (part.low, part.high) != (low, high):

@@ -59,7 +59,10 @@ def render_allocation(case, allocation) -> str:
     lines += _part_lines(allocation)
     tightest = allocation.tightest_cost
     if allocation.chosen is None:
-        if allocation.exhausted:
+        if allocation.passed_over_limit:
+            lines.append(f"No passing design found: the search passed over {allocation.pruned} designs "
+                         "ruled out by failures (its limit) and stopped; the designs left were not looked at")
+        elif allocation.exhausted:
             lines.append(f"No passing design found within {allocation.max_decisions} decisions "
                          "(--max-decisions); the designs left were not decided")
         else:
