@@ -200,3 +200,21 @@ def test_shipped_cases_draw_certified_maps(name, vary, tmp_path):
             largest = max(abs(c) for c in coefficients)
             assert max(np.roots([c / largest for c in coefficients]).real) > -1e-6
     assert (tmp_path / "map" / "map.svg").read_bytes().lstrip().startswith(b"<?xml")
+
+
+def test_a_cell_meets_the_margin_rule_that_check_applies(tmp_path):
+    """(K - 1) s^2 + a s + 1 with K = 2 +- 25 %: scaled by the required margin 2, K's range
+    reaches 1, where the leading coefficient vanishes (the order drops: derived here), so the
+    margin fails, in check and in every map cell alike (one rule, decided in one place)."""
+    path = tmp_path / "lead.toml"
+    path.write_text('title = "lead"\n[parameters.K]\nnominal = 2\ntolerance = "25%"\n[parameters.a]\n'
+                    'nominal = 1\ntolerance = "10%"\n[polynomial]\nexpression = "(K - 1)*s^2 + a*s + 1"\n'
+                    "[requirements]\nmargin = 2\n")
+    mapped = CliRunner().invoke(main, ["map", str(path), "--vary", "a=0.5..2", "--resolution", "2",
+                                       "--depth", "0", "--workers", "1", "--json"])
+    assert mapped.exit_code == 0, mapped.stderr
+    cells = json.loads(mapped.stdout)["cells"]
+    assert [c["verdict"] for c in cells] == ["stable", "stable"]
+    assert {c["margin"]["outcome"] for c in cells} == {"fail"}
+    checked = CliRunner().invoke(main, ["check", str(path)])
+    assert "Requirement margin (stable with every tolerance scaled by 2): FAIL" in checked.stdout

@@ -33,7 +33,8 @@ from ..model.case import parse_case
 from ..model.family import Box
 from ..model.rewrite import source_text
 from .executor import TaskRunner
-from .outcomes import Outcome, Verdict, box_problem, untestable
+from .outcomes import Outcome, Verdict, untestable
+from .requirements import decide_margin_over
 from .verdict import decide  # at module level: a worker process imports it once, at its start
 
 __all__ = ["Axis", "DesignMap", "MapCell", "design_map", "parse_axis"]
@@ -234,16 +235,19 @@ def decide_cell(task: tuple) -> dict:
 
 
 def _margin_outcome(family, indices, ranges, required: Fraction, max_boxes: int, max_seconds: float) -> dict:
-    """Is the cell stable with every other tolerance scaled by the required margin?"""
-    box = _cell_box(family, indices, ranges, required)
-    problem = box_problem(family, box)
-    if problem is not None and problem.kind.value != "degree_loss":
-        # the scaled box stops standing for the loop before the required scale: rho* is below it
-        outcome = Outcome.FAIL if problem.proven else Outcome.OPEN
-        return {"required": format_fraction(required), "outcome": outcome.value, "reason": problem.detail}
-    result = decide(family, box, max_seconds=max_seconds, max_boxes=max_boxes)
-    return {"required": format_fraction(required), "outcome": result.verdict.outcome.value,
-            "reason": result.reason}
+    """Is the cell stable with every other tolerance scaled by the required margin? The margin
+    rule of every command (:func:`robust.analysis.requirements.decide_margin_over`)."""
+    check = decide_margin_over(family, _cell_box(family, indices, ranges, required), required, max_boxes,
+                               max_seconds)
+    if check.problem is not None:
+        reason = check.problem.detail
+    elif check.outcome is Outcome.PASS:
+        reason = "stable over the cell with the other tolerances scaled by the margin"
+    elif check.witness is not None:
+        reason = "a verified unstable point in the cell with the other tolerances scaled by the margin"
+    else:
+        reason = "not decided within the budget"
+    return {"required": format_fraction(required), "outcome": check.outcome.value, "reason": reason}
 
 
 # -- the map ------------------------------------------------------------------------------

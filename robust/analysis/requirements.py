@@ -14,8 +14,8 @@ from .outcomes import BoxProblem, Outcome, Verdict, box_problem, requirement_out
 from .scaling import Scaling
 from .verdict import Witness, decide
 
-__all__ = ["DEFAULT_REQUIREMENT_BOXES", "RequirementCheck", "check_requirements", "decide_requirement",
-           "reuse_or_decide"]
+__all__ = ["DEFAULT_REQUIREMENT_BOXES", "RequirementCheck", "check_requirements", "decide_margin_over",
+           "decide_requirement", "reuse_or_decide"]
 
 #: The box budget of one requirement's direct decision, the same in every command.
 DEFAULT_REQUIREMENT_BOXES = 5000
@@ -73,13 +73,9 @@ def decide_requirement(family: UncertainPolynomial, name: str, required: Fractio
     reaches a physical limit, a sign change of a divided-out factor or a degree loss fails
     it), every root left of Re(s) = -required over the box for ``"decay_rate"``."""
     if name == "margin":
-        box = Scaling.everything(family).box(required)
-        problem = box_problem(family, box)
-        if problem is not None:
-            return RequirementCheck(name, required, None,
-                                    Outcome.FAIL if problem.proven else Outcome.OPEN, None, problem)
-        res = decide(family, box, max_seconds=max_seconds, max_boxes=max_boxes)
-    elif name == "decay_rate":
+        return decide_margin_over(family, Scaling.everything(family).box(required), required, max_boxes,
+                                  max_seconds)
+    if name == "decay_rate":
         res = decide(shifted_family(family, required) if required else family, family.box,
                      max_seconds=max_seconds, max_boxes=max_boxes)
     elif name in MEASURE_OF_REQUIREMENT:
@@ -90,6 +86,22 @@ def decide_requirement(family: UncertainPolynomial, name: str, required: Fractio
     else:
         raise ValueError(f"unknown requirement {name!r}")
     return RequirementCheck(name, required, res.verdict, requirement_outcome(required, res.verdict),
+                            res.witness, None, res.safety_stop)
+
+
+def decide_margin_over(family: UncertainPolynomial, box, required: Fraction,
+                       max_boxes: int = DEFAULT_REQUIREMENT_BOXES, max_seconds: float = 600.0
+                       ) -> RequirementCheck:
+    """The margin requirement decided over ``box``, the tolerance box scaled by ``required``
+    (for a design map, with the cell's design ranges put in): a box that reaches a physical
+    limit, a sign change of a divided-out factor or a degree loss fails it (or leaves it open
+    when that is not proven); else it passes exactly when the family is stable over the box."""
+    problem = box_problem(family, box)
+    if problem is not None:
+        return RequirementCheck("margin", required, None, Outcome.FAIL if problem.proven else Outcome.OPEN,
+                                None, problem)
+    res = decide(family, box, max_seconds=max_seconds, max_boxes=max_boxes)
+    return RequirementCheck("margin", required, res.verdict, requirement_outcome(required, res.verdict),
                             res.witness, None, res.safety_stop)
 
 
