@@ -320,12 +320,11 @@ def _part_classes(case, name: str, classes: Sequence[ToleranceClass]) -> PartCla
     if nominal == 0:
         raise InputError("--parts", f"{name} has the nominal 0: a relative tolerance means nothing there",
                          "parts with a non-zero nominal", name)
-    low_limit, high_limit = family.limit_of(index)
     options, infeasible, dominated = [], [], []
     for c in classes:  # tightest first
         low, high = nominal - c.tolerance * abs(nominal), nominal + c.tolerance * abs(nominal)
-        if (low_limit is not None and low <= low_limit) or (high_limit is not None and high >= high_limit):
-            limit = low_limit if low_limit is not None and low <= low_limit else high_limit
+        limit = family.limit_reached(index, low, high)
+        if limit is not None:
             infeasible.append((c, f"reaches the physical limit {format_fraction(limit)} of {name}"))
         elif options and c.cost >= min(o.cost for o in options):
             dominated.append(c)

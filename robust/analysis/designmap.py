@@ -37,7 +37,7 @@ from .outcomes import Outcome, Verdict, untestable
 from .requirements import decide_margin_over
 from .verdict import decide  # at module level: a worker process imports it once, at its start
 
-__all__ = ["Axis", "DesignMap", "MapCell", "design_map", "parse_axis"]
+__all__ = ["Axis", "DesignMap", "MapCell", "check_axes", "design_map", "parse_axis"]
 
 #: Defaults of the command line and of :func:`design_map`.
 DEFAULT_RESOLUTION = 8
@@ -60,6 +60,21 @@ class Axis:
         """JSON form: name, low, high (exact strings), unit."""
         return {"name": self.name, "low": format_fraction(self.low), "high": format_fraction(self.high),
                 "unit": self.unit}
+
+
+def check_axes(axes: Sequence[Axis]) -> tuple[Axis, ...]:
+    """One or two design axes, of different parameters.
+
+    Raises
+    ------
+    InputError
+        Naming --vary and what to write instead.
+    """
+    axes = tuple(axes)
+    if not 1 <= len(axes) <= 2 or len({a.name for a in axes}) != len(axes):
+        raise InputError("--vary", "give one or two different design parameters",
+                         "--vary A=LO..HI [--vary B=LO..HI]", " ".join(a.name for a in axes))
+    return axes
 
 
 def parse_axis(text: str, case) -> Axis:
@@ -86,8 +101,8 @@ def parse_axis(text: str, case) -> Axis:
     if not low < high:
         raise InputError("--vary", "the low end must be below the high end", expected, text)
     index = names.index(name)
-    lo_limit, hi_limit = case.family.limit_of(index)
-    if (lo_limit is not None and low <= lo_limit) or (hi_limit is not None and high >= hi_limit):
+    if case.family.limit_reached(index, low, high) is not None:
+        lo_limit, hi_limit = case.family.limit_of(index)
         inside = (f"({'-inf' if lo_limit is None else format_fraction(lo_limit)}, "
                   f"{'inf' if hi_limit is None else format_fraction(hi_limit)})")
         raise InputError("--vary", f"the range reaches the physical limits of {name}",
@@ -288,10 +303,7 @@ def design_map(case, axes: Sequence[Axis], resolution: int = DEFAULT_RESOLUTION,
     DesignMap
     """
     started = time.perf_counter()
-    axes = tuple(axes)
-    if not 1 <= len(axes) <= 2 or len({a.name for a in axes}) != len(axes):
-        raise InputError("--vary", "give one or two different design parameters", "--vary A=.. [--vary B=..]",
-                         [a.name for a in axes])
+    axes = check_axes(axes)
     text = source_text(case) if text is None else text
     indices = tuple(a.index for a in axes)
     required = case.requirements.margin

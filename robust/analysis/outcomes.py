@@ -106,8 +106,7 @@ def box_problem(family: UncertainPolynomial, box: Box) -> BoxProblem | None:
     """
     outside = []
     for i, (low, high) in enumerate(box.intervals):
-        lo_limit, hi_limit = family.limit_of(i)
-        if (lo_limit is not None and low <= lo_limit) or (hi_limit is not None and high >= hi_limit):
+        if family.limit_reached(i, low, high) is not None:
             outside.append(family.names[i])
     if outside:
         return BoxProblem(LimitKind.PHYSICAL_LIMIT, tuple(outside), True,

@@ -35,14 +35,11 @@ def map_command(case: str, varied: tuple[str, ...], resolution: int, depth: int,
     Exit codes: 0 the map was made (whatever it shows), 2 bad input or an unusable -o,
     3 the work could not be finished (a worker process or the cluster lost).
     """
-    from ..analysis.designmap import design_map, parse_axis
+    from ..analysis.designmap import check_axes, design_map, parse_axis
     from ..errors import InputError
 
     loaded = load(case)
-    axes = [parse_axis(text, loaded) for text in varied]
-    if len(axes) > 2 or len({a.name for a in axes}) != len(axes):
-        raise InputError("--vary", "give one or two different design parameters",
-                         "--vary A=LO..HI [--vary B=LO..HI]", " ".join(varied))
+    axes = check_axes([parse_axis(text, loaded) for text in varied])
     if resolution ** len(axes) > max_cells:
         raise InputError("--resolution", f"the first grid needs {resolution ** len(axes)} cell decisions, "
                          f"more than --max-cells {max_cells}", "a smaller resolution or a larger --max-cells")

@@ -22,7 +22,7 @@ from ..exact import sparse
 from ..exact.numbers import approx_text, parse_number, to_fraction
 from .display import HtmlDisplay
 from .expr import MAX_DEGREE, MAX_TOTAL_LENGTH, ParsedFormula, new_work, parse_formula
-from .family import Box, UncertainPolynomial, build_family, discrete_family
+from .family import Box, UncertainPolynomial, build_family, discrete_family, limit_reached
 from .forms import closed_loop, coefficients_polynomial, expression_polynomial, loop_parts
 from .diagram import Diagram, diagram_polynomial
 from .matrices import FORMS as MATRIX_FORMS
@@ -316,7 +316,7 @@ def _limits(reader: _Reader, section: str, value: object, low: Fraction, high: F
     lo, hi = ends
     if lo is not None and hi is not None and lo >= hi:
         raise reader.error(section, "limits", "the limits are reversed or equal", "low < high", value)
-    if (lo is not None and low <= lo) or (hi is not None and high >= hi):
+    if limit_reached((lo, hi), low, high) is not None:
         raise reader.error(section, "limits", "the parameter's range reaches its limits",
                            f"limits strictly outside the range [{float(low):g}, {float(high):g}] "
                            "(a limit is a value the part can approach but never reach)", value)

@@ -26,11 +26,34 @@ if TYPE_CHECKING:  # sympy is loaded only by the functions that take sympy input
     import sympy as sp
 
 __all__ = ["Box", "UncertainPolynomial", "build_family", "classify", "discrete_family", "gain_family",
-           "phase_family", "radius_family", "sector_family", "shifted_family", "sign_over_box"]
+           "limit_reached", "phase_family", "radius_family", "sector_family", "shifted_family",
+           "sign_over_box"]
 
 #: The dependence classes, from the most to the least structured.
 KINDS = ("independent", "affine", "multilinear", "polynomial")
 
+
+
+def limit_reached(limits: tuple[Fraction | None, Fraction | None], low: Fraction, high: Fraction
+                  ) -> Fraction | None:
+    """The one rule of physical limits: limits are exclusive, so a range [low, high] reaches
+    the lower limit when low <= it and the upper one when high >= it; that limit (the lower
+    first), else None. A part's range as written, a scaled box, a design range and a
+    tolerance class are all held to it.
+
+    Examples
+    --------
+    >>> limit_reached((Fraction(0), None), Fraction(0), Fraction(1))
+    Fraction(0, 1)
+    >>> limit_reached((Fraction(0), None), Fraction(1, 10), Fraction(1)) is None
+    True
+    """
+    lo_limit, hi_limit = limits
+    if lo_limit is not None and low <= lo_limit:
+        return lo_limit
+    if hi_limit is not None and high >= hi_limit:
+        return hi_limit
+    return None
 
 @dataclass(frozen=True, slots=True)
 class Box:
@@ -238,6 +261,11 @@ class UncertainPolynomial:
     def limit_of(self, i: int) -> tuple[Fraction | None, Fraction | None]:
         """The physical limits of parameter ``i`` (exclusive; None: none on that side)."""
         return self.limits[i] if self.limits else (None, None)
+
+    def limit_reached(self, i: int, low: Fraction, high: Fraction) -> Fraction | None:
+        """The physical limit of parameter ``i`` that the range [low, high] reaches, if any
+        (see :func:`limit_reached`)."""
+        return limit_reached(self.limit_of(i), low, high)
 
     def factor_signs(self, box: Box) -> tuple[int | None, ...]:
         """Per cleared denominator or common factor, its sign over ``box``: see :func:`sign_over_box`."""
