@@ -20,6 +20,7 @@ from ..analysis.outcomes import Verdict
 from ..errors import InputError
 from ..exact.numbers import approx_text, format_fraction, to_float
 from .canvas import DPI, new_figure
+from .fmt import with_unit
 from .writer import write_new_file
 
 __all__ = ["MAP_FILES", "check_map_directory", "map_figures", "render_map", "write_map"]
@@ -45,8 +46,8 @@ def render_map(result: DesignMap, title: str = "") -> str:
     axes = result.axes
     lines = [f"Design map{': ' + title if title else ''}"]
     for a in axes:
-        unit = f" {a.unit}" if a.unit else ""
-        lines.append(f"  axis {a.name}: {approx_text(a.low, 6)} .. {approx_text(a.high, 6)}{unit}")
+        lines.append("  " + with_unit(f"axis {a.name}: {approx_text(a.low, 6)} .. {approx_text(a.high, 6)}",
+                                      a.unit))
     lines.append(f"  {len(result.cells)} cells ({result.decisions} decisions, first grid "
                  f"{result.resolution}{' x ' + str(result.resolution) if len(axes) == 2 else ''}, "
                  f"up to {result.depth} halvings)")
@@ -133,7 +134,7 @@ def _fraction(text: str):
 
 
 def _label(axis) -> str:
-    return f"{axis.name} ({axis.unit})" if axis.unit else axis.name
+    return f"{axis.name} ({axis.unit})" if with_unit("", axis.unit) else axis.name
 
 
 def _is_previous_map(path: Path) -> bool:

@@ -17,20 +17,28 @@ __all__ = ["bound_text", "box_text", "criterion_ends", "criterion_text", "entry_
 LONG = 14
 
 
+#: Units that say "a pure number": shown as nothing beside a value ("8 1" would read as 81).
+PURE_NUMBER = frozenset({"1", "dimensionless", "none"})
+
+
 def units_of(source: object) -> dict[str, str]:
-    """name -> unit of the parameters that have one: from a case's parameters, or from a box
-    or a result that holds the case's box (nothing when neither is there)."""
+    """name -> unit of the parameters that have one (a pure number has none to show): from a
+    case's parameters, or from a box or a result that holds the case's box (nothing when
+    neither is there)."""
     parameters = getattr(source, "parameters", None)
     if parameters is not None and all(hasattr(p, "unit") for p in parameters):
-        return {p.name: p.unit.strip() for p in parameters if p.unit.strip()}
-    box = source if hasattr(source, "units") else getattr(source, "box", None)
-    units = getattr(box, "units", ()) or ()
-    return {n: u for n, u in zip(box.names, units, strict=False) if u} if units else {}
+        pairs = [(p.name, p.unit.strip()) for p in parameters]
+    else:
+        box = source if hasattr(source, "units") else getattr(source, "box", None)
+        units = getattr(box, "units", ()) or ()
+        pairs = list(zip(box.names, units, strict=False)) if units else []
+    return {n: u for n, u in pairs if u and u.lower() not in PURE_NUMBER}
 
 
 def with_unit(text: str, unit: str) -> str:
-    """``text`` with ``unit`` beside it ("4.7 uF"); ``text`` alone when there is no unit."""
-    return f"{text} {unit}" if unit else text
+    """``text`` with ``unit`` beside it ("4.7 uF"); ``text`` alone when there is no unit or
+    the unit is a pure number."""
+    return f"{text} {unit}" if unit and unit.strip().lower() not in PURE_NUMBER else text
 
 
 def box_text(box, units: dict[str, str]) -> str:
