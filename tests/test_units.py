@@ -352,3 +352,41 @@ def test_matrix_entries_that_are_numbers_or_unitless_are_not_compared():
     case = parse_case(case_text(parameters, state_space('[["0", "1"], ["-k/m", "-c/m"]]')), "n.toml")
     assert case.notes == ("n.toml: parameters without a unit, so the terms holding them are not checked "
                           "for dimension: c",)
+
+
+# -- scale: values are used as written, so one sum needs one unit scale ----------------------
+
+@pytest.mark.parametrize(("parameters", "polynomial", "first", "second"), [
+    # an inductance in mH beside a resistance in ohm: L*s is in thousandths of an ohm
+    ({"R": ("10", "ohm"), "L": ("1", "mH"), "C": ("10u", "F")},
+     '[polynomial]\nexpression = "L*C*s^2 + R*C*s + 1"', "L*C*s^2", "R*C*s"),
+    # two time constants, one in ms and one in s
+    ({"T1": ("5", "ms"), "T2": ("0.2", "s")}, '[polynomial]\nexpression = "T1*T2*s^2 + (T1 + T2)*s + 1"',
+     "T1", "T2"),
+    # a speed limit in rpm against a bandwidth in rad/s
+    ({"w1": ("3000", "rpm"), "w2": ("100", "rad/s")},
+     '[polynomial]\nexpression = "s^2 + (w1 + w2)*s + w1*w2"', "w1", "w2"),
+])
+def test_terms_of_one_dimension_in_two_scales_are_refused(parameters, polynomial, first, second):
+    """The terms agree in dimension but not in scale; pint's conversion factors (mH = 1e-3 H,
+    ms = 1e-3 s, rpm = 2 pi/60 rad/s) are the reference for the scale each message names."""
+    message = error_of(parameters, polynomial)
+    assert "need one scale" in message and first in message and second in message
+    factors = {"mH": UREG("mH").to("H").magnitude, "ms": UREG("ms").to("s").magnitude,
+               "rpm": UREG("rpm").to("rad/s").magnitude}
+    unit = next(u for _, u in parameters.values() if u in factors)
+    assert f"in units of {factors[unit]:.6g}" in message
+
+
+def test_si_units_with_suffixes_pass_and_a_written_number_is_not_compared():
+    """The same RLC written in SI units with suffixes passes; T*s + 1 with T in ms is not
+    compared (a written number has no known unit)."""
+    parse_case(case_text(RLC, '[polynomial]\nexpression = "L*C*s^2 + R*C*s + 1"'), "u.toml")
+    parse_case(case_text({"T": ("5", "ms")}, '[polynomial]\nexpression = "T*s + 1"'), "u.toml")
+
+
+def test_a_scaled_loop_gain_is_refused():
+    """1 + P*C adds the loop gain to 1: a gain in mV/V is a thousandth of a pure number."""
+    message = error_of({"K": ("2", "mV/V"), "w": ("10", "rad/s"), "Kc": ("3", "1")},
+                       '[polynomial.loop]\nplant = "K*w/(s + w)"\ncontroller = "Kc"')
+    assert "loop gain" in message and "in units of 0.001" in message

@@ -14,12 +14,19 @@ may carry a dimension, e.g. V/A); ``M_ij s^2 + C_ij s + K_ij`` of a mechanical e
 ``s - A_ii`` and ``A_ij - (B K)_ij`` of a state-space entry. A determinant adds, beside the
 product of its diagonal, the same product with (i, i), (j, j) swapped for (i, j), (j, i), so
 ``P_ij P_ji`` must have the dimension of ``P_ii P_jj`` (state units cancel there, while an
-off-diagonal entry alone may be any ratio of them). pint is imported only here and only for a case with units,
-so commands on other cases do not load it.
+off-diagonal entry alone may be any ratio of them).
+
+Scale counts as well as dimension: values are used as written, so ``T1 + T2`` with ``T1`` in
+ms and ``T2`` in s, or ``L*s + R`` with ``L`` in mH (``s`` is per second), adds numbers in
+different units and is refused like a dimension mismatch, with a pointer to SI units and
+engineering suffixes (``nominal = "0.5m"`` with ``unit = "s"``). A written number has no
+known unit, so ``T*s + 1`` is not compared. pint is imported only here
+and only for a case with units, so commands on other cases do not load it.
 """
 
 from __future__ import annotations
 
+import math
 import re
 import tokenize
 from collections.abc import Callable, Sequence
@@ -44,7 +51,39 @@ _NAMED = (("resistance", "resistance"), ("capacitance", "capacitance"), ("induct
           ("electric_potential", "voltage"), ("charge", "charge"), ("power", "power"),
           ("energy", "energy"), ("force", "force"), ("magnetic_flux", "magnetic flux"))
 
-Dimension = Any  # pint's UnitsContainer of base dimensions; None where unknown
+Dimension = Any  # a _Measure (pint's dimensionality and the SI scale); None where unknown
+
+
+class _Measure:
+    """A dimension (pint's UnitsContainer of base dimensions) and a scale: the factor from the
+    unit to the SI units of that dimension (ms: 0.001). Multiplies, divides and raises to
+    integer powers like a unit; equal when both agree (the scale to 1e-9); true when it is not
+    a plain pure number."""
+
+    __slots__ = ("dim", "scale")
+
+    def __init__(self, dim: Any, scale: float = 1.0) -> None:
+        self.dim, self.scale = dim, scale
+
+    def __mul__(self, other: _Measure) -> _Measure:
+        return _Measure(self.dim * other.dim, self.scale * other.scale)
+
+    def __truediv__(self, other: _Measure) -> _Measure:
+        return _Measure(self.dim / other.dim, self.scale / other.scale)
+
+    def __pow__(self, k: int) -> _Measure:
+        return _Measure(self.dim**k, self.scale**k)
+
+    def __eq__(self, other: object) -> bool:
+        return isinstance(other, _Measure) and self.dim == other.dim and self.same_scale(other)
+
+    __hash__ = None  # type: ignore[assignment]
+
+    def same_scale(self, other: _Measure) -> bool:
+        return math.isclose(self.scale, other.scale, rel_tol=1e-9)
+
+    def __bool__(self) -> bool:
+        return bool(self.dim) or not math.isclose(self.scale, 1.0, rel_tol=1e-9)
 Fail = Callable[..., CaseError]  # (section, key, problem, expected, index=...) -> the error
 
 
@@ -57,7 +96,31 @@ def _registry():
 
 @cache
 def _dimensionless() -> Dimension:
-    return _registry().get_dimensionality("[]")
+    return _Measure(_registry().get_dimensionality("[]"))
+
+
+def _per_second() -> Dimension:
+    """The continuous-time variable: a frequency, per second (rad/s, Hz = 1/s: scale 1)."""
+    return _Measure(_registry().get_dimensionality("1/[time]"))
+
+
+def _measure(text: str) -> Dimension:
+    """The dimension and SI scale of a unit (``"ms"``: [time], 0.001).
+
+    Raises
+    ------
+    InputError
+        As :func:`unit_dimension`, or for a unit with an offset (degC) that has no scale.
+    """
+    dimension = unit_dimension(text)
+    registry = _registry()
+    try:
+        scale = float(registry.Quantity(1, registry.parse_units(text)).to_base_units().magnitude)
+    except _errors():
+        raise _unreadable(f"{text!r} has no plain scale to SI units (an offset unit such as degC?)") from None
+    if not math.isfinite(scale) or scale <= 0:
+        raise _unreadable(f"{text!r} has no plain scale to SI units")
+    return _Measure(dimension, scale)
 
 
 def _errors() -> tuple[type[BaseException], ...]:
@@ -108,8 +171,14 @@ def describe(dimension: Dimension) -> str:
     """A dimension in words: ``[resistance^2]``, ``[1/time]``, ``[inductance*time]``, ``dimensionless``.
 
     A derived dimension pint names (resistance, voltage, ...) is shown by that name, possibly
-    times a power of time; any other by its base dimensions.
+    times a power of time; any other by its base dimensions. A unit not in SI scale says its
+    scale: ``[time] in units of 0.001 x SI`` (ms).
     """
+    if isinstance(dimension, _Measure):
+        words = describe(dimension.dim)
+        if math.isclose(dimension.scale, 1.0, rel_tol=1e-9):
+            return words
+        return f"{words} in units of {dimension.scale:.6g} x SI"
     if not dimension:
         return "dimensionless"
     if len(dimension) > 2:  # [time], [length^2*mass]: best as they are
@@ -146,6 +215,10 @@ class _Mismatch(Exception):
 
 
 def _clash(first: str, first_dimension: Dimension, second: str, second_dimension: Dimension) -> str:
+    if first_dimension.dim == second_dimension.dim:  # one dimension, two scales
+        return (f"{_short(first)} is {describe(first_dimension)}, {_short(second)} is "
+                f"{describe(second_dimension)}: values are used as written, so the terms of one sum "
+                "need one scale (write values in SI units with suffixes: nominal = \"0.5m\", unit = \"s\")")
     one = "is dimensionless" if not first_dimension else f"has dimension {describe(first_dimension)}"
     other = "is dimensionless" if not second_dimension else f"has {describe(second_dimension)}"
     return f"{_short(first)} {one}, {_short(second)} {other}"
@@ -230,10 +303,10 @@ def check_units(parameters: Sequence[Any], variable: str, form: str,
     for parameter in parameters:
         if parameter.unit.strip():
             try:
-                known[parameter.name] = unit_dimension(parameter.unit.strip())
+                known[parameter.name] = _measure(parameter.unit.strip())
             except InputError as error:
                 raise fail(f"parameters.{parameter.name}", "unit", error.problem, error.expected) from None
-    known[variable] = _dimensionless() if variable == "z" else _registry().get_dimensionality("1/[time]")
+    known[variable] = _dimensionless() if variable == "z" else _per_second()
     results = []
     for section, key, index, parsed in formulas:
         if parsed.tree is None:  # parsed without keep_tree: nothing to walk
@@ -286,7 +359,9 @@ def _check_loop_gain(plant: Dimension, controller: Dimension, fail: Fail) -> Non
     raise fail("polynomial.loop", None,
                f"the loop gain P*C has dimension {describe(plant * controller)} (plant "
                f"{describe(plant)}, controller {describe(controller)}), but 1 + P*C adds it to 1",
-               "a dimensionless loop gain (e.g. a plant in V/A with a controller in A/V)")
+               "a dimensionless loop gain (e.g. a plant in V/A with a controller in A/V)"
+               if (plant * controller).dim else "a loop gain in SI scale (values are used as written: a gain "
+               "of 2 mV/V is written 2m with unit V/V)")
 
 
 _MECHANICAL = ("M*s^2, C*s and K of one dimension at each entry (e.g. kg*m^2, N*m*s/rad and N*m/rad "
