@@ -273,6 +273,8 @@ ERRORS = [
     ("singular", ["a = r + b", "b = a"], None, "polynomial.diagram.equations",
      "the interconnection is singular (its determinant is identically zero): an algebraic loop through a, b"),
     ("bad formula", ["e = r - y", "y = K/(s*e"], None, "equations[1]", "unbalanced '('"),
+    ("suffix in a formula", ["e = r - y", "y = 10k/s*e"], None, "equations[1]",
+     "engineering suffixes such as 4.7k belong in parameter values"),
 ]
 
 

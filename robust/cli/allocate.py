@@ -50,7 +50,6 @@ def allocate_command(case: str, classes_text: str, parts: str | None, max_decisi
     """
     from ..analysis.allocate import allocate, allocation_parts, parse_classes
     from ..analysis.executor import TaskRunner
-    from ..analysis.progress import listening
     from ..errors import InputError
     from ..exact.numbers import approx_text
     from ..model.rewrite import source_text, with_tolerances
@@ -76,13 +75,17 @@ def allocate_command(case: str, classes_text: str, parts: str | None, max_decisi
         text = source_text(loaded)
         with_tolerances(text, {p.name: (p.nominal, p.options[0].text, *p.interval(0)) for p in candidates},
                         "chosen by robust allocate", loaded.path)
-    shown = progress_bar("allocate", None, "decision")
+    shown = progress_bar("allocate", None, "design decided")
     shown.brackets = False
-    with listening(shown.listen), TaskRunner(workers, cluster) as runner:
+
+    def run(function, items):  # progress counts designs decided, wherever they run
+        before = shown.count
+        return runner.run(function, items, progress=lambda done, _total: shown.reach(before + done))
+
+    with TaskRunner(workers, cluster) as runner:
         result = allocate(loaded, classes, names, max_boxes=max_boxes, max_decisions=max_decisions,
-                          max_seconds=max_seconds, run=runner.run)
-    shown.finish(f"{len(result.log)} designs decided"
-                 + ("" if result.cost is None else f", cheapest passing costs {approx_text(result.cost, 8)}"))
+                          max_seconds=max_seconds, run=run)
+    shown.finish("" if result.cost is None else f"cheapest passing costs {approx_text(result.cost, 8)}")
     written = _write_design(loaded, result, text, case_out, certificate, max_boxes, max_seconds) \
         if case_out is not None and text is not None and result.chosen is not None else None
     if as_json:

@@ -24,14 +24,23 @@ Outcome = tuple[int, dict, str, str]
 
 
 def case_paths(arguments: Sequence[str]) -> list[str]:
-    """The case files named: each argument, a directory standing for its sorted ``*.toml``."""
+    """The case files named, each once: each argument, a directory standing for its sorted
+    ``*.toml`` entries (a broken link among them too, so that its error line says so: a
+    sign-off over a folder never skips a case in silence)."""
     paths: list[str] = []
+    seen: set[Path] = set()
     for argument in arguments:
         folder = Path(argument)
-        if folder.is_dir():
-            paths += [str(p) for p in sorted(folder.glob("*.toml")) if p.is_file()]
-        else:
-            paths.append(argument)
+        named = [str(p) for p in sorted(folder.glob("*.toml")) if not p.is_dir()] if folder.is_dir() \
+            else [argument]
+        for path in named:
+            try:
+                key = Path(path).resolve()
+            except (OSError, RuntimeError):  # a link loop: keep it, its error line will say so
+                key = Path(path).absolute()
+            if key not in seen:
+                seen.add(key)
+                paths.append(path)
     return paths
 
 

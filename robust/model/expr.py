@@ -61,6 +61,9 @@ _TOKEN = re.compile(  # ASCII only: other digits (an Arabic-Indic three) are not
     r"|(?P<op>\*\*|[-+*/^()]))"
 )
 _SPACE = re.compile(r"\s*")
+#: A name right after a number (4.7k, 2s): the one message, from the parser and from names_in.
+_SUFFIX_PROBLEM = ("missing operator after a number (engineering suffixes such as 4.7k belong in parameter "
+                   "values, not in formulas; write '*' between factors)")
 
 
 class _Token(NamedTuple):  # a tuple: tokens are made by the hundred thousand
@@ -429,11 +432,7 @@ class _Parser:
         if token.kind == "number":
             self.take()
             if self.token.kind == "name":
-                raise self.fail(
-                    "missing operator after a number (engineering suffixes such as 4.7k belong "
-                    "in parameter values, not in formulas; write '*' between factors)",
-                    "an operator",
-                )
+                raise self.fail(_SUFFIX_PROBLEM, "an operator")
             try:
                 value = parse_number(token.text, "number", suffixes=False)
             except InputError as error:  # e.g. 1e401: report it with its column, as the rest
@@ -581,7 +580,7 @@ def names_in(text: str) -> tuple[str, ...]:
     Raises
     ------
     FormulaError
-        For a character that is not part of a formula.
+        For a character that is not part of a formula, or a name right after a number.
 
     Examples
     --------
@@ -592,7 +591,11 @@ def names_in(text: str) -> tuple[str, ...]:
         raise FormulaError(str(text), 1, "a formula must be text", "a string")
     if len(text) > MAX_LENGTH:
         raise FormulaError(text, MAX_LENGTH, "formula too long", f"at most {MAX_LENGTH} characters")
-    return tuple(dict.fromkeys(t.text for t in _tokenize(text) if t.kind == "name"))
+    tokens = _tokenize(text)
+    for before, token in zip(tokens, tokens[1:], strict=False):
+        if before.kind == "number" and token.kind == "name":
+            raise FormulaError(text, token.position, _SUFFIX_PROBLEM, "an operator")
+    return tuple(dict.fromkeys(t.text for t in tokens if t.kind == "name"))
 
 
 def polynomial_coefficients(text: str, variable: str = "s") -> list[Fraction]:

@@ -18,7 +18,9 @@ __all__ = ["Progress"]
 
 
 def _plural(unit: str) -> str:
-    return unit + ("es" if unit.endswith(("x", "s")) else "s")
+    """The plural of a unit, its first word taking it ("design decided": "designs decided")."""
+    word, space, rest = unit.partition(" ")
+    return word + ("es" if word.endswith(("x", "s")) else "s") + space + rest
 
 
 class Progress:
