@@ -96,3 +96,23 @@ def test_report_batch_writes_one_directory_per_case(folder, tmp_path):
     assert sorted(p.name for p in out.iterdir()) == ["a_stable", "b_unstable"]
     assert (out / "a_stable" / "report.html").is_file()
     assert "sign-off PASS" in result.stdout and "sign-off FAIL" in result.stdout
+
+
+def test_broken_links_in_a_folder_are_reported_not_skipped(tmp_path):
+    """A sign-off over a folder names every *.toml entry: a dangling link and a link loop
+    each get a 'bad input' line and their own error line."""
+    (tmp_path / "a_stable.toml").write_text(STABLE)
+    (tmp_path / "b_dangling.toml").symlink_to(tmp_path / "nowhere.toml")
+    (tmp_path / "c_loop.toml").symlink_to(tmp_path / "c_loop.toml")
+    result = run("check", str(tmp_path))
+    assert result.exit_code == 2
+    assert f"{tmp_path / 'b_dangling.toml'}: bad input" in result.stdout
+    assert f"{tmp_path / 'c_loop.toml'}: bad input" in result.stdout
+    assert "3 case(s)" in result.stdout.splitlines()[-1]
+
+
+def test_a_case_named_twice_runs_once(folder):
+    path = str(folder / "a_stable.toml")
+    result = run("check", path, path, str(folder / "." / "a_stable.toml"), "--json")
+    assert result.exit_code == 0
+    assert len(json.loads(result.stdout)) == 1
