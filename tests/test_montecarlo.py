@@ -85,6 +85,39 @@ def test_stable_count_equals_an_independent_count_of_the_same_draws():
     assert lo == pytest.approx(k[k <= 0].min()) and hi == pytest.approx(k[k <= 0].max())
 
 
+def test_chunks_draw_from_their_own_streams_and_count_like_a_replay():
+    """Past 100,000 draws each chunk draws from the seed sequence [seed, k]: replaying those
+    streams with numpy gives the same stable count (draws with K > 0, the closed form of this
+    family) and the same unstable range."""
+    from robust.analysis.montecarlo import chunk_generator
+
+    params, coefficients, _ = _KNOWN["a coefficient changing sign at 0"]
+    case = parse_case(_case_text(params, coefficients))
+    result = estimate_yield(case, n=250_000, seed=4)
+    replay = np.concatenate([draw_parameters(case, size, chunk_generator(4, k))
+                             for k, size in enumerate((100_000, 100_000, 50_000))])
+    assert np.array_equal(draw_parameters(case, 10, chunk_generator(4, 0)),
+                          draw_parameters(case, 10, np.random.default_rng(4)))
+    k = replay[:, case.family.names.index("K")]
+    assert result.stable == int(np.sum(k > 0))
+    lo, hi = dict((n, (a, b)) for n, a, b in result.unstable_ranges)["K"]
+    assert lo == pytest.approx(k[k <= 0].min()) and hi == pytest.approx(k[k <= 0].max())
+
+
+def test_the_yield_is_the_same_on_two_processes():
+    """The chunks decided on two local processes give every count and range of the run here."""
+    from robust.analysis.executor import TaskRunner
+
+    params, coefficients, _ = _KNOWN["the Hurwitz condition a2 a1 > a3 a0"]
+    case = parse_case(_case_text(params, coefficients))
+    here = estimate_yield(case, n=230_000, seed=9)
+    with TaskRunner(2) as runner:
+        there = estimate_yield(case, n=230_000, seed=9, run=runner.run)
+    fields = ("draws", "stable", "interval", "exact_rechecks", "unstable_ranges", "unstable_ranges_exact")
+    assert [getattr(here, f) for f in fields] == [getattr(there, f) for f in fields]
+    assert 0 < here.stable < here.draws
+
+
 def test_same_seed_gives_the_same_result():
     """Two runs with one seed agree in every count; another seed draws other builds."""
     params, coefficients, _ = _KNOWN["the Hurwitz condition a2 a1 > a3 a0"]

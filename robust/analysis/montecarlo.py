@@ -32,9 +32,12 @@ from ..exact.numbers import binary_exponent, format_fraction, json_float, to_flo
 from ..exact.routh import is_hurwitz
 from .binomial import clopper_pearson
 
-__all__ = ["YieldResult", "draw_parameters", "estimate_yield", "float_routh_screen"]
+__all__ = ["YieldResult", "chunk_generator", "draw_parameters", "estimate_yield", "float_routh_screen",
+           "yield_chunk"]
 
 _CHUNK = 100_000
+#: From this many draws on, the command line runs the chunks on every core by default.
+PARALLEL_DRAWS = 2_000_000
 #: Rows screened at once inside a chunk (see :func:`_screen`).
 _SCREEN_ROWS = 16_384
 _EPS = float(np.finfo(float).eps)
@@ -308,8 +311,21 @@ def _screen(form: _FloatForm, draws: np.ndarray) -> tuple[np.ndarray, np.ndarray
 
 
 def estimate_yield(case, n: int = 100_000, seed: int = 0, confidence: float = 0.95,
-                   progress: Callable[[int, int], None] | None = None) -> YieldResult:
+                   progress: Callable[[int, int], None] | None = None,
+                   run: Callable | None = None) -> YieldResult:
     """Estimate the stable fraction of ``n`` random builds (seeded).
+
+    The draws come in chunks of 100,000, each from its own stream (:func:`chunk_generator`),
+    so the result depends on ``n`` and ``seed`` alone, not on where the chunks run.
+
+    Parameters
+    ----------
+    progress
+        Called as ``progress(draws_done, n)``.
+    run
+        ``run(function, items, progress)`` -> results in order, such as
+        :meth:`robust.analysis.executor.TaskRunner.run` (processes or a cluster); default:
+        one chunk after another, here.
 
     Examples
     --------
@@ -319,34 +335,55 @@ def estimate_yield(case, n: int = 100_000, seed: int = 0, confidence: float = 0.
     1.0
     """
     started = time.perf_counter()
-    rng = np.random.default_rng(seed)
     family = case.family
     scales = _scales(case)
-    form = _float_form(case, scales)
-    stable_total = 0
-    rechecks = 0
+    sizes = [min(_CHUNK, n - start) for start in range(0, n, _CHUNK)]
+    tasks = [(case, seed, k, size) for k, size in enumerate(sizes)]
+    if run is None:  # here, chunk by chunk
+        parts = []
+        for task in tasks:
+            parts.append(yield_chunk(task))
+            if progress is not None:
+                progress(sum(sizes[:len(parts)]), n)
+    else:
+        report = None if progress is None else \
+            (lambda done, _total: progress(sum(sizes[:done]), n))
+        parts = run(yield_chunk, tasks, report)
+    stable_total = sum(part[0] for part in parts)
+    rechecks = sum(part[1] for part in parts)
     k = len(family.names)
-    lo_unstable = np.full(k, np.inf)  # mantissas: the draws are mantissa * 2^scales
-    hi_unstable = np.full(k, -np.inf)
-    done = 0
-    while done < n:
-        size = min(_CHUNK, n - done)
-        draws = _draw_scaled(case, size, rng, scales)
-        stable, clear = _screen(form, draws)
-        for idx in np.flatnonzero(~clear):
-            rechecks += 1
-            stable[idx] = is_hurwitz(family.coefficients_at(_exact_point(draws[idx], scales)))
-        stable_total += int(stable.sum())
-        bad = draws[~stable]
-        if len(bad):
-            lo_unstable = np.minimum(lo_unstable, bad.min(axis=0))
-            hi_unstable = np.maximum(hi_unstable, bad.max(axis=0))
-        done += size
-        if progress is not None:
-            progress(done, n)
+    lo_unstable = np.min([part[2] for part in parts], axis=0) if parts else np.full(k, np.inf)
+    hi_unstable = np.max([part[3] for part in parts], axis=0) if parts else np.full(k, -np.inf)
     low, high = clopper_pearson(stable_total, n, confidence)
     exact = tuple((name, _exact(lo_unstable[i], scales[i]), _exact(hi_unstable[i], scales[i]))
                   for i, name in enumerate(family.names) if np.isfinite(lo_unstable[i]))
     ranges = tuple((name, to_float(lo), to_float(hi)) for name, lo, hi in exact)
     return YieldResult(n, stable_total, seed, confidence, (low, high), rechecks,
                        ranges, time.perf_counter() - started, exact)
+
+
+def chunk_generator(seed: int, k: int) -> np.random.Generator:
+    """The random stream of chunk ``k``: the seed itself for the first chunk (so that a run of
+    up to 100,000 draws is one plain seeded stream), the seed sequence [seed, k] for the
+    others. Fixed by the seed and the chunk alone, so the draws are the same wherever a chunk
+    runs."""
+    return np.random.default_rng(seed if k == 0 else [seed, k])
+
+
+def yield_chunk(task: tuple) -> tuple[int, int, np.ndarray, np.ndarray]:
+    """One chunk of the yield: ``task`` = (case, seed, chunk index, draws). Returns (stable
+    draws, exact re-checks, least and largest unstable mantissa per parameter, +-inf where
+    none). Module level, so that any worker can run it."""
+    case, seed, k, size = task
+    family = case.family
+    scales = _scales(case)
+    draws = _draw_scaled(case, size, chunk_generator(seed, k), scales)
+    stable, clear = _screen(_float_form(case, scales), draws)
+    unclear = np.flatnonzero(~clear)
+    for idx in unclear:
+        stable[idx] = is_hurwitz(family.coefficients_at(_exact_point(draws[idx], scales)))
+    bad = draws[~stable]
+    width = len(family.names)
+    low = bad.min(axis=0) if len(bad) else np.full(width, np.inf)
+    high = bad.max(axis=0) if len(bad) else np.full(width, -np.inf)
+    return int(stable.sum()), len(unclear), low, high
