@@ -145,3 +145,18 @@ def test_figure_labels_carry_the_units(mechanism):
     registry = pint.UnitRegistry()
     assert registry.parse_units("1/s").dimensionality == registry.parse_units("rad/s").dimensionality \
         == registry.get_dimensionality("1/[time]")
+
+
+def test_the_report_says_which_parameters_the_unit_check_left_out():
+    """Parameters without a unit are not checked for dimension; the report's parameter
+    section names them (and says so when no parameter, or every one, has a unit)."""
+    from robust.model.case import parse_case
+    from robust.render.content import parameters_section
+
+    text = ('title = "t"\n[parameters.R]\nnominal = "10"\ntolerance = "1%"\nunit = "ohm"\n'
+            '[parameters.K]\nnominal = "2"\ntolerance = "1%"\n[polynomial]\nexpression = "s + R*K"\n')
+    section = parameters_section(parse_case(text))
+    note = "".join(str(part) for part in section.blocks[-1].parts)
+    assert "except the terms holding these parameters without a unit: K." in note
+    plain = parameters_section(parse_case(text.replace('unit = "ohm"\n', "")))
+    assert "No parameter has a unit" in "".join(str(part) for part in plain.blocks[-1].parts)

@@ -131,8 +131,21 @@ def parameters_section(case) -> Section:
     table = Table(("name", "nominal", "range", "tolerance", "unit", "distribution", "note"), tuple(rows))
     return Section("Parameters", (table, Paragraph(
         ("Values are exact rationals from their decimal text; shown here to six digits. "
-         "A normal distribution takes the tolerance as three standard deviations, clipped to the range.",),
+         "A normal distribution takes the tolerance as three standard deviations, clipped to the range. ",
+         _units_checked(case)),
         "note")), anchor="parameters")
+
+
+def _units_checked(case) -> str:
+    """What the dimension check covered: every parameter, some (naming the others), or none."""
+    without = [p.name for p in case.parameters if not p.unit.strip()]
+    if len(without) == len(case.parameters):
+        return "No parameter has a unit, so the formulas were not checked for dimension."
+    if not without:
+        return ("Every parameter has a unit: every sum of the formulas was checked for one dimension "
+                "and scale.")
+    return ("The formulas were checked for one dimension and scale in every sum, except the terms holding "
+            "these parameters without a unit: " + ", ".join(without) + ".")
 
 
 def _polynomial(analysis: Analysis) -> Section:
