@@ -6,12 +6,14 @@ Architecture: layers, one direction of flow (a layer imports only the layers abo
     exact/      the exact core, knows nothing of cases: numbers (the one module that imports
                 gmpy2), multivariate polynomials, the Routh array, Hurwitz determinants,
                 interval polynomials and Kharitonov's theorem
-    model/      what the user wrote: expr (safe parser), forms (text -> coefficients), case
-                (TOML), build (the same case from Python values), display (a notebook's HTML
-                hook), family (the uncertain polynomial over a box, physical limits), graph
+    model/      what the user wrote: expr (safe parser), forms (each form -> one polynomial:
+                expression, coefficients, loop, matrices, diagram), units, case (TOML), build
+                (the same case from Python values), rewrite, display (a notebook's HTML hook),
+                family (the uncertain polynomial over a box, physical limits), graph
     analysis/   what we conclude: outcomes (the enums, the one validity rule and the one
-                pass/fail rule), edges, search, verdict (the ladder), margin, rank,
-                montecarlo, signoff (every analysis of a report)
+                pass/fail rule), edges, search, verdict (the ladder), margin, criteria, rank,
+                montecarlo, designmap, allocate, executor (processes or a dask cluster),
+                signoff (every analysis of a report)
     render/     text, report blocks, html, markdown, notebook, figures, writer: no mathematics
     cli         click only: options in, API call, render, exit code
 
@@ -37,7 +39,9 @@ _EXPORTS = {
     "RootCounts": "robust.exact.routh",
     "RouthTable": "robust.exact.routh",
     "Witness": "robust.analysis.verdict",
+    "allocate": "robust.analysis.allocate",
     "check": "robust.analysis.verdict",
+    "design_map": "robust.analysis.designmap",
     "estimate_yield": "robust.analysis.montecarlo",
     "is_hurwitz": "robust.exact.routh",
     "load_case": "robust.model.case",
@@ -45,11 +49,15 @@ _EXPORTS = {
     "margin": "robust.analysis.margin",
     "rank": "robust.analysis.rank",
     "routh_table": "robust.model.forms",
+    "run_tasks": "robust.analysis.executor",
 }
 
 __all__ = sorted([*_EXPORTS, "__version__"])
 
 if TYPE_CHECKING:
+    from .analysis.allocate import allocate as allocate
+    from .analysis.designmap import design_map as design_map
+    from .analysis.executor import run_tasks as run_tasks
     from .analysis.margin import margin as margin
     from .analysis.montecarlo import estimate_yield as estimate_yield
     from .analysis.rank import rank as rank
