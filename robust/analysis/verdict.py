@@ -346,8 +346,9 @@ def _split_index(family: UncertainPolynomial, box: Box, kh: KharitonovResult | N
             if not derivs[i].is_zero:
                 slope = abs(derivs[i].evaluate_float(center))
                 # a second-order term keeps a parameter with zero slope at the centre in play
-                scores[i] += (slope * widths[i] + 1e-12 * widths[i]) / scale
-    return max(candidates, key=lambda i: (scores[i], widths[i]))
+                scores[i] += slope * widths[i] / scale + 1e-12  # a constant, whatever the units
+    relative = [w / abs(c) if c else w for w, c in zip(widths, center, strict=True)]  # ties
+    return max(candidates, key=lambda i: (scores[i], relative[i]))
 
 
 def decide(
