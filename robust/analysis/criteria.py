@@ -190,6 +190,8 @@ GAIN_DOWN = Measure("gain_margin_db_lower_direction", "gain margin (gain lowered
 # first try about 10 degrees (tan^2 5 deg = 0.00765), doubling up; cap about 179 degrees
 PHASE = Measure("phase_margin_deg", "phase margin (lag or lead)", "deg", phase_family, Fraction(765, 10**5),
                 Fraction(13130), True, _phase_value, _phase_x)
+
+
 def _ray_prover(family: UncertainPolynomial, t: Fraction, max_boxes: int) -> Decision | None:
     """Continuous time: the sector proven by zero exclusion on its boundary ray, or refuted at
     a point of the box checked exactly; None (the ladder's turn) otherwise."""

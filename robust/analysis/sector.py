@@ -150,6 +150,8 @@ def prove_sector(family: UncertainPolynomial, t: Fraction, box: Box | None = Non
     inside = family.nominal if box.contains(family.nominal) else box.center
     if not sector_inside(family.coefficients_at(inside), t):
         return SectorTest("refuted", tuple(inside), reason="a point of the box is outside the sector")
+    if all(lo == hi for lo, hi in box.intervals):  # one point: its exact test is the answer
+        return SectorTest("proven")
     for k, label in ((0, "leading"), (len(a) - 1, "constant")):
         if sign_over_box(a[k], box) not in (1, -1):
             return SectorTest("open", reason=f"the {label} coefficient is not shown to keep its sign")
