@@ -19,6 +19,10 @@ end, a verified witness at the upper end); it is shown in the engineer's unit (d
 ratio, radius), rounded outwards. Where a value in that unit has no rational x (6 dB is
 g = 10^(6/20)), a requirement is proven at a rational x on the strict side and refuted at one
 on the lenient side, both within 1e-12 relative (:meth:`Measure.x_of`).
+
+Every decision at one x goes through :meth:`Measure.decide_at`. For the damping ratio in
+continuous time it first tries zero exclusion on the sector's boundary ray, on p itself
+(:mod:`.sector`), which proves what the degree-2n family's ladder cannot for larger loops.
 """
 
 from __future__ import annotations
@@ -43,10 +47,12 @@ from ..model.family import (
 from .bracket import Bracket, Work, bisect_margin
 from .outcomes import Outcome, Verdict, requirement_outcome
 from .progress import tell
-from .verdict import Witness, decide
+from .sector import METHOD_TEXT as RAY_METHOD
+from .sector import prove_sector
+from .verdict import Witness, decide, make_witness
 
-__all__ = ["CRITERIA", "MEASURE_OF_REQUIREMENT", "Criterion", "Measure", "criteria_for", "decide_criterion",
-           "measure_criterion"]
+__all__ = ["CRITERIA", "MEASURE_OF_REQUIREMENT", "Criterion", "Decision", "Measure", "criteria_for",
+           "decide_criterion", "measure_criterion"]
 
 _REL = Fraction(1, 10**12)
 
@@ -65,6 +71,22 @@ def _rational_near(value, side: int) -> Fraction:
         return short_between(start, start * (1 + _REL)) or start
     start = exact - guard
     return short_between(start * (1 - _REL), start) or start
+
+
+@dataclass(frozen=True, slots=True)
+class Decision:
+    """One decision of a criterion at one x, as its three users need it: the verdict (STABLE:
+    met at x), a verified witness of the family asked at x, whether the wall-clock safety stop
+    cut it, and the method in words."""
+
+    verdict: Verdict
+    witness: Witness | None = None
+    safety_stop: bool = False
+    method: str = ""
+
+
+#: (family, x, max_boxes) -> a decision, or None to leave it to the decision ladder.
+Prover = Callable[[UncertainPolynomial, Fraction, int], Decision | None]
 
 
 @dataclass(frozen=True, slots=True)
@@ -87,6 +109,19 @@ class Measure:
     #: What holds whatever the family: 0 dB and 0 deg of margin (x = 0), a damping ratio of at
     #: least -1, a spectral radius of at least 0. Shown when robust stability is not proven.
     floor: float = 0.0
+    #: A test tried before the ladder on family_at(family, x) (the damping ratio's ray test).
+    prover: Prover | None = None
+
+    def decide_at(self, family: UncertainPolynomial, x: Fraction, max_boxes: int,
+                  max_seconds: float = 600.0) -> Decision:
+        """Decide "the criterion reaches x over the family's box": the measure's own prover
+        first, then the decision ladder on the family that asks it at x."""
+        if self.prover is not None:
+            found = self.prover(family, x, max_boxes)
+            if found is not None:
+                return found
+        res = decide(self.family_at(family, x), max_seconds=max_seconds, max_boxes=max_boxes)
+        return Decision(res.verdict, res.witness, res.safety_stop, res.method_text)
 
     def shown(self, x: Fraction | None, side: int) -> float | None:
         """The value at x as a float rounded outwards (``side`` +1 up, -1 down)."""
@@ -155,8 +190,26 @@ GAIN_DOWN = Measure("gain_margin_db_lower_direction", "gain margin (gain lowered
 # first try about 10 degrees (tan^2 5 deg = 0.00765), doubling up; cap about 179 degrees
 PHASE = Measure("phase_margin_deg", "phase margin (lag or lead)", "deg", phase_family, Fraction(765, 10**5),
                 Fraction(13130), True, _phase_value, _phase_x)
+
+
+def _ray_prover(family: UncertainPolynomial, t: Fraction, max_boxes: int) -> Decision | None:
+    """Continuous time: the sector proven by zero exclusion on its boundary ray, or refuted at
+    a point of the box checked exactly; None (the ladder's turn) otherwise."""
+    if family.discrete:
+        return None
+    found = prove_sector(family, t, max_boxes=max_boxes)
+    if found.status == "proven":
+        return Decision(Verdict.STABLE, method=RAY_METHOD)
+    if found.status == "refuted" and found.point is not None:
+        witness = make_witness(sector_family(family, t), found.point, found.reason, family.box)
+        if witness is not None:
+            return Decision(Verdict.UNSTABLE, witness, method="a point outside the sector, exact Routh array")
+    return None
+
+
 DAMPING = Measure("damping_ratio", "damping ratio", "", sector_family, Fraction(1, 16), Fraction(1), False,
-                  damping_of, lambda zeta, side: damping_parameter(zeta, side), floor=-1.0)
+                  damping_of, lambda zeta, side: damping_parameter(zeta, side), floor=-1.0,
+                  prover=_ray_prover)
 RADIUS = Measure("spectral_radius", "spectral radius", "", lambda f, x: radius_family(f, 1 - x),
                  Fraction(1, 20), Fraction(1), False, lambda x: 1 - x, lambda r, side: 1 - r,
                  smaller_is_better=True)
@@ -299,8 +352,7 @@ class Criterion:
 
 def _tester(family: UncertainPolynomial, measure: Measure, work: Work, max_boxes: int, last: list):
     def test(x: Fraction) -> tuple[Verdict, Witness | None]:
-        res = decide(measure.family_at(family, x), max_seconds=max(work.deadline - time.perf_counter(), 0.01),
-                     max_boxes=max_boxes)
+        res = measure.decide_at(family, x, max_boxes, max(work.deadline - time.perf_counter(), 0.01))
         work.clock_fired |= res.safety_stop
         tell("tested", scale=x, verdict=res.verdict)
         last[:] = [x]
@@ -328,7 +380,7 @@ def _tightener(family: UncertainPolynomial, measure: Measure, tol: Fraction, las
             if high - low <= tol * high / 4:
                 break
             mid = short_between(low + (high - low) / 4, high - (high - low) / 4) or (low + high) / 2
-            res = decide(measure.family_at(alone, mid), max_boxes=64)
+            res = measure.decide_at(alone, mid, 64)
             if res.verdict is Verdict.UNSTABLE and res.witness is not None:
                 high, best = mid, res.witness
             elif res.verdict is Verdict.STABLE:
@@ -346,12 +398,11 @@ def decide_criterion(family: UncertainPolynomial, measure: Measure, required: Fr
     the 1e-12 gap or the budget), the witness, and whether the clock stopped it."""
     deadline = time.perf_counter() + max_seconds
     strict, lenient = measure.x_of(required, +1), measure.x_of(required, -1)
-    res = decide(measure.family_at(family, strict), max_seconds=max_seconds, max_boxes=max_boxes)
+    res = measure.decide_at(family, strict, max_boxes, max_seconds)
     if res.verdict is not Verdict.UNSTABLE or strict == lenient:
         verdict = None if res.verdict is Verdict.UNDECIDED else res.verdict
         return verdict, res.witness, res.safety_stop
-    again = decide(measure.family_at(family, lenient), max_seconds=max(deadline - time.perf_counter(), 0.01),
-                   max_boxes=max_boxes)
+    again = measure.decide_at(family, lenient, max_boxes, max(deadline - time.perf_counter(), 0.01))
     if again.verdict is Verdict.UNSTABLE:
         return Verdict.UNSTABLE, again.witness, again.safety_stop
     return None, None, res.safety_stop or again.safety_stop

@@ -180,17 +180,24 @@ def _shift_matrix(d: int, low: Fraction, width: Fraction) -> tuple[np.ndarray, i
     return matrix, denominator**d
 
 
-def bernstein_patch(poly: MultiPoly, box: Sequence[tuple[Fraction, Fraction]]) -> Patch:
+def bernstein_patch(poly: MultiPoly, box: Sequence[tuple[Fraction, Fraction]],
+                    degrees: Sequence[int] | None = None) -> Patch:
     """The Bernstein coefficients of ``poly`` over ``box`` ((low, high) per parameter).
 
     Parameters of zero width are substituted first; parameters the polynomial does not
     depend on get no axis, so the tensor has prod(d_i + 1) entries over the rest.
+    ``degrees`` (per parameter, at least the polynomial's own) expands it in the basis of
+    those degrees instead (degree elevation), so that two polynomials' patches align entry
+    by entry; a parameter of zero width still gets no axis.
     """
     fixed = {i: lo for i, (lo, hi) in enumerate(box) if lo == hi and poly.degree_in(i)}
     if fixed:
         poly = poly.substitute(fixed)
-    axes = tuple(i for i in range(poly.nvars) if poly.degree_in(i))
-    degrees = [poly.degree_in(i) for i in axes]
+    if degrees is None:
+        degrees = [poly.degree_in(i) for i in range(poly.nvars)]
+    assert all(d >= poly.degree_in(i) for i, d in enumerate(degrees))
+    axes = tuple(i for i in range(poly.nvars) if degrees[i] and box[i][0] != box[i][1])
+    degrees = [degrees[i] for i in axes]
     tensor = np.zeros([d + 1 for d in degrees], dtype=object)
     denominators = 1
     terms: list[tuple[tuple[int, ...], Any]] = list(poly.terms)  # exact rationals (mpq)
