@@ -23,15 +23,8 @@ conjugates of upper-ray roots because p is real. B being connected, every point 
 
 Condition (iii) is decided exactly. With t = tan(alpha / 2) rational, d^k = c_k + j s_k is
 rational (:mod:`robust.exact.rays`), so Re p(rho d) and Im p(rho d) / rho are polynomials in
-(q, rho); p(rho d) = 0 needs both to vanish. Over a cell of B x [0, R] their Bernstein
-expansions (:mod:`robust.exact.bernstein`, in one common basis) enclose their values: since
-the Bernstein basis functions are non-negative and sum to 1, the pair (Re, Im / rho) at every
-point of the cell is a convex combination of the pairs of coefficients (Re_I, Im_I). A cell is
-excluded when all coefficients of one of them have one strict sign, or when the pairs lie in
-one open half-plane through 0 (zero exclusion for the value set, as in the mapping theorem's
-use of convex hulls). Other cells are halved (de Casteljau) along the axis, rho or a
-parameter, where the coefficients change most; cells are counted against the budget, never
-seconds.
+(q, rho); p(rho d) = 0 needs both to vanish, which :func:`.exclusion.exclude_zeros` rules out
+over B x [0, R] by Bernstein cells.
 """
 
 from __future__ import annotations
@@ -39,24 +32,18 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
-from itertools import islice, product
 
 import numpy as np
 
-from ..exact.bernstein import Patch, bernstein_patch
-from ..exact.polynomials import MultiPoly
 from ..exact.rays import ray_parts, root_bound
 from ..exact.regions import damping_of, sector_product
 from ..exact.routh import is_hurwitz
 from ..model.family import Box, UncertainPolynomial, sign_over_box
+from .exclusion import exclude_zeros, float_roots, least_magnitude, screen_points
 
 __all__ = ["METHOD_TEXT", "SectorTest", "prove_sector", "sector_inside"]
 
 METHOD_TEXT = "zero exclusion on the sector's boundary ray (Bernstein in rho and the parameters)"
-
-#: Box corners screened in floating point for a point outside the sector before subdividing.
-_SCREEN_CORNERS = 64
-
 
 @dataclass(frozen=True, slots=True)
 class SectorTest:
@@ -84,61 +71,18 @@ def sector_inside(coefficients: Sequence[Fraction], t: Fraction) -> bool:
 def _screen(family: UncertainPolynomial, box: Box, t: Fraction) -> tuple[Fraction, ...] | None:
     """A box corner (or the centre) whose roots look least damped, when floats put one below
     damping_of(t); the caller checks it exactly."""
-    points = [box.center, *islice(product(*((lo, hi) for lo, hi in box.intervals)), _SCREEN_CORNERS)]
+    points = screen_points(box)
     coefficients = family.coefficients_float(np.array([[float(x) for x in p] for p in points]))
     zeta = float(damping_of(t))
     worst, where = zeta, None
     for point, row in zip(points, coefficients, strict=True):
-        row = row / (np.abs(row).max() or 1.0)
-        with np.errstate(all="ignore"):
-            try:
-                roots = np.roots(row)
-            except np.linalg.LinAlgError:
-                continue
-        for r in roots:
+        roots = float_roots(row)
+        for r in () if roots is None else roots:
             size = abs(r)
             damping = -r.real / size if size else 1.0
             if damping < worst:
                 worst, where = damping, point
     return tuple(where) if where is not None else None
-
-
-def _one_sign(patch: Patch) -> bool:
-    return patch.positive() or patch.high() < 0
-
-
-def _as_floats(tensor: np.ndarray) -> tuple[np.ndarray, int]:
-    """The integers of a tensor divided by 2^shift as floats (no overflow), and the shift."""
-    flat = [int(x) for x in tensor.reshape(-1).tolist()]
-    shift = max(max(abs(x) for x in flat).bit_length() - 60, 0)
-    return np.array([float(x >> shift) if x >= 0 else -float(-x >> shift) for x in flat]), shift
-
-
-def _in_half_plane(re_patch: Patch, im_patch: Patch) -> bool:
-    """The points (Re_I, Im_I) of the two aligned patches' Bernstein coefficients lie in an
-    open half-plane through 0. The Bernstein basis functions are non-negative and sum to 1,
-    so (Re, Im / rho) at every point of the cell is a convex combination of those points and
-    is not 0 (the value-set form of zero exclusion). Floats find the direction (opposite the
-    largest gap between the points' angles); the test u Re_I + v Im_I > 0 for every I is
-    exact on the integers (a positive scale of either coordinate moves the points but not
-    whether the half-plane exists)."""
-    if re_patch.axes != im_patch.axes or re_patch.tensor.shape != im_patch.tensor.shape:
-        return False
-    (x, re_shift), (y, im_shift) = _as_floats(re_patch.tensor), _as_floats(im_patch.tensor)
-    angles = np.sort(np.arctan2(y, x))
-    gaps = np.diff(np.concatenate([angles, angles[:1] + 2 * np.pi]))
-    k = int(np.argmax(gaps))
-    if gaps[k] <= np.pi:
-        return False
-    middle = angles[k] + gaps[k] / 2 + np.pi
-    u, v = (round(float(c) * 2**40) for c in (np.cos(middle), np.sin(middle)))
-    combined = (u << im_shift) * re_patch.tensor + (v << re_shift) * im_patch.tensor
-    return bool(combined.min() > 0)
-
-
-def _relative_spread(patch: Patch) -> dict[int, float]:
-    top = float(np.abs(patch.tensor).max()) or 1.0
-    return {i: float(v) / top for i, v in patch.spread().items()}
 
 
 def prove_sector(family: UncertainPolynomial, t: Fraction, box: Box | None = None,
@@ -159,62 +103,13 @@ def prove_sector(family: UncertainPolynomial, t: Fraction, box: Box | None = Non
     if screened is not None and not sector_inside(family.coefficients_at(screened), t):
         return SectorTest("refuted", screened, reason="a box corner is outside the sector")
     bounds = family.bounds(box)
-    least = _least_magnitude(a[0], bounds[0].low, bounds[0].high, box)
+    least = least_magnitude(a[0], bounds[0].low, bounds[0].high, box)
     if least is None:
         return SectorTest("open", reason="no lower bound on the leading coefficient's magnitude")
     radius = root_bound([max(abs(b.low), abs(b.high)) for b in bounds], least)
     real, imag = ray_parts(a, t)
-    rho = len(family.names)
-    full = (*box.intervals, (Fraction(0), radius))
-    degrees = [max(real.degree_in(i), imag.degree_in(i)) for i in range(rho + 1)]
-    cells = [(full, bernstein_patch(real, full, degrees), bernstein_patch(imag, full, degrees))]
-    count = 0
-    while cells:
-        if count >= max_boxes:
-            return SectorTest("open", cells=count, radius=radius, reason="the work budget ran out")
-        cell, re_patch, im_patch = cells.pop()
-        count += 1
-        if _one_sign(re_patch) or _one_sign(im_patch) or _in_half_plane(re_patch, im_patch):
-            continue
-        axis = _split_axis(cell, re_patch, im_patch, rho)
-        lo, hi = cell[axis]
-        mid = (lo + hi) / 2
-        low_re, high_re = re_patch.halves(axis)
-        low_im, high_im = im_patch.halves(axis)
-        cells.append((_with(cell, axis, (mid, hi)), high_re, high_im))
-        cells.append((_with(cell, axis, (lo, mid)), low_re, low_im))
+    proven, count = exclude_zeros(real, imag, (*box.intervals, (Fraction(0), radius)), len(family.names),
+                                  max_boxes)
+    if not proven:
+        return SectorTest("open", cells=count, radius=radius, reason="the work budget ran out")
     return SectorTest("proven", cells=count, radius=radius)
-
-
-def _least_magnitude(poly: MultiPoly, low: Fraction, high: Fraction, box: Box) -> Fraction | None:
-    """A positive lower bound of |poly| over the box: from its bounds (low, high) when they
-    exclude 0, else from its Bernstein coefficients; None when neither shows one."""
-    if low > 0 or high < 0:
-        return min(abs(low), abs(high))
-    patch = bernstein_patch(poly, box.intervals)
-    if patch.positive():
-        return patch.low()
-    return -patch.high() if patch.high() < 0 else None
-
-
-def _with(cell: tuple, axis: int, interval: tuple[Fraction, Fraction]) -> tuple:
-    return (*cell[:axis], interval, *cell[axis + 1:])
-
-
-#: The weight of rho's share in the choice of the axis to halve: rho enters with degree n, the
-#: parameters mostly with degree 1 or 2, and halving rho pays off sooner (4 was the best of
-#: 1/2, 1, 2, 4, 8, 16 in cells near the worst damping of cases/servo_pid.toml and
-#: cases/cascaded_motor_drive.toml).
-_RHO_WEIGHT = 4.0
-
-
-def _split_axis(cell: tuple, re_patch: Patch, im_patch: Patch, rho: int) -> int:
-    """The axis (rho or a parameter of non-zero width) along which the Bernstein coefficients
-    of Re and Im / rho change most, relative to their size (rho's share weighted): where the
-    enclosure loses most."""
-    score = {i: 0.0 for i, (lo, hi) in enumerate(cell) if hi > lo}
-    for patch in (re_patch, im_patch):
-        for i, v in _relative_spread(patch).items():
-            if i in score:
-                score[i] += v * (_RHO_WEIGHT if i == rho else 1.0)
-    return max(score, key=lambda i: (score[i], i == rho))
