@@ -22,7 +22,9 @@ on the lenient side, both within 1e-12 relative (:meth:`Measure.x_of`).
 
 Every decision at one x goes through :meth:`Measure.decide_at`. For the damping ratio in
 continuous time it first tries zero exclusion on the sector's boundary ray, on p itself
-(:mod:`.sector`), which proves what the degree-2n family's ladder cannot for larger loops.
+(:mod:`.sector`), which proves what the degree-2n family's ladder cannot for larger loops;
+for the phase margin likewise zero exclusion on the imaginary axis for every lag, on the
+loop itself (:mod:`.lag`).
 """
 
 from __future__ import annotations
@@ -45,6 +47,8 @@ from ..model.family import (
     sector_family,
 )
 from .bracket import Bracket, Work, bisect_margin
+from .lag import METHOD_TEXT as AXIS_METHOD
+from .lag import prove_lag
 from .outcomes import Outcome, Verdict, requirement_outcome
 from .progress import tell
 from .sector import METHOD_TEXT as RAY_METHOD
@@ -109,7 +113,8 @@ class Measure:
     #: What holds whatever the family: 0 dB and 0 deg of margin (x = 0), a damping ratio of at
     #: least -1, a spectral radius of at least 0. Shown when robust stability is not proven.
     floor: float = 0.0
-    #: A test tried before the ladder on family_at(family, x) (the damping ratio's ray test).
+    #: A test tried before the ladder on family_at(family, x) (the damping ratio's ray test,
+    #: the phase margin's axis test).
     prover: Prover | None = None
 
     def decide_at(self, family: UncertainPolynomial, x: Fraction, max_boxes: int,
@@ -187,29 +192,38 @@ GAIN_BOTH = Measure("gain_margin_db", "gain margin (gain raised or lowered)", "d
                     _gain_value, _gain_x)
 GAIN_DOWN = Measure("gain_margin_db_lower_direction", "gain margin (gain lowered)", "dB", _lower_gain,
                     Fraction(1), Fraction(10**6 - 1), True, _gain_value, _gain_x)
+
+
+def _exclusion_prover(test: Callable, family_at: Callable[[UncertainPolynomial, Fraction],
+                                                          UncertainPolynomial],
+                      method: str, refuted: str) -> Prover:
+    """A prover from a zero-exclusion test (continuous time only): its proof, or its candidate
+    point checked exactly in the family that asks the criterion at x (a verified witness);
+    None (the ladder's turn) otherwise."""
+    def prover(family: UncertainPolynomial, x: Fraction, max_boxes: int) -> Decision | None:
+        if family.discrete:
+            return None
+        found = test(family, x, max_boxes=max_boxes)
+        if found.status == "proven":
+            return Decision(Verdict.STABLE, method=method)
+        if found.status == "refuted" and found.point is not None:
+            asked = family_at(family, x)
+            witness = make_witness(asked, found.point, found.reason, asked.box)
+            if witness is not None:
+                return Decision(Verdict.UNSTABLE, witness, method=refuted)
+        return None
+    return prover
+
+
 # first try about 10 degrees (tan^2 5 deg = 0.00765), doubling up; cap about 179 degrees
 PHASE = Measure("phase_margin_deg", "phase margin (lag or lead)", "deg", phase_family, Fraction(765, 10**5),
-                Fraction(13130), True, _phase_value, _phase_x)
-
-
-def _ray_prover(family: UncertainPolynomial, t: Fraction, max_boxes: int) -> Decision | None:
-    """Continuous time: the sector proven by zero exclusion on its boundary ray, or refuted at
-    a point of the box checked exactly; None (the ladder's turn) otherwise."""
-    if family.discrete:
-        return None
-    found = prove_sector(family, t, max_boxes=max_boxes)
-    if found.status == "proven":
-        return Decision(Verdict.STABLE, method=RAY_METHOD)
-    if found.status == "refuted" and found.point is not None:
-        witness = make_witness(sector_family(family, t), found.point, found.reason, family.box)
-        if witness is not None:
-            return Decision(Verdict.UNSTABLE, witness, method="a point outside the sector, exact Routh array")
-    return None
-
-
+                Fraction(13130), True, _phase_value, _phase_x,
+                prover=_exclusion_prover(prove_lag, phase_family, AXIS_METHOD,
+                                         "a point unstable under the lag, exact Routh array"))
 DAMPING = Measure("damping_ratio", "damping ratio", "", sector_family, Fraction(1, 16), Fraction(1), False,
                   damping_of, lambda zeta, side: damping_parameter(zeta, side), floor=-1.0,
-                  prover=_ray_prover)
+                  prover=_exclusion_prover(prove_sector, sector_family, RAY_METHOD,
+                                           "a point outside the sector, exact Routh array"))
 RADIUS = Measure("spectral_radius", "spectral radius", "", lambda f, x: radius_family(f, 1 - x),
                  Fraction(1, 20), Fraction(1), False, lambda x: 1 - x, lambda r, side: 1 - r,
                  smaller_is_better=True)

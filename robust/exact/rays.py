@@ -23,7 +23,7 @@ from fractions import Fraction
 from .numbers import from_mpq
 from .polynomials import MultiPoly
 
-__all__ = ["direction_powers", "ray_parts", "ray_values", "root_bound"]
+__all__ = ["axis_parts", "direction_powers", "ray_parts", "ray_values", "root_above", "root_bound"]
 
 
 def direction_powers(n: int, t: Fraction) -> list[tuple[Fraction, Fraction]]:
@@ -73,7 +73,7 @@ def ray_values(coefficients: Sequence[Fraction], t: Fraction, rho: Fraction) -> 
     return re, im
 
 
-def _root_above(q: Fraction, k: int) -> Fraction:
+def root_above(q: Fraction, k: int) -> Fraction:
     """A rational r >= q^(1/k) (q >= 0), close to it: a float guess, checked exactly."""
     if q == 0:
         return Fraction(0)
@@ -82,6 +82,30 @@ def _root_above(q: Fraction, k: int) -> Fraction:
     while guess**k < q:
         guess *= Fraction(1025, 1024)
     return guess
+
+
+def axis_parts(total: Sequence[MultiPoly], diff: Sequence[MultiPoly]) -> tuple[MultiPoly, MultiPoly]:
+    """(Re F(j w), Im F(j w)) for F(s) = A(s) + j t B(s), as polynomials in the parameters, t
+    and w (two more variables, in that order), for real A and B with coefficients a_n .. a_0
+    (highest power first, same length) in the parameters.
+
+    With (j w)^k = j^k w^k, A(j w) = Ar + j Ai with Ar = sum_(k even) (-1)^(k/2) a_k w^k and
+    Ai = sum_(k odd) (-1)^((k-1)/2) a_k w^k (likewise B), so Re F = Ar - t Bi, Im F = Ai + t Br.
+    """
+    n = len(total) - 1
+    nvars = total[0].nvars
+    real: dict[tuple[int, ...], Fraction] = {}
+    imag: dict[tuple[int, ...], Fraction] = {}
+    for i, (a, b) in enumerate(zip(total, diff, strict=True)):
+        k = n - i
+        sign = -1 if k % 4 in (2, 3) else 1  # j^k = sign (k even) or sign j (k odd)
+        # k even: a_k -> Re, t b_k -> Im; k odd: a_k -> Im, t b_k -> -Re
+        a_side, b_side, b_sign = (real, imag, sign) if k % 2 == 0 else (imag, real, -sign)
+        for poly, side, t_power, factor in ((a, a_side, 0, sign), (b, b_side, 1, b_sign)):
+            for exponents, value in poly.terms:
+                key = (*exponents, t_power, k)
+                side[key] = side.get(key, Fraction(0)) + factor * from_mpq(value)
+    return MultiPoly.from_mapping(nvars + 2, real), MultiPoly.from_mapping(nvars + 2, imag)
 
 
 def root_bound(magnitudes: Sequence[Fraction], lead_least: Fraction) -> Fraction:
@@ -98,5 +122,5 @@ def root_bound(magnitudes: Sequence[Fraction], lead_least: Fraction) -> Fraction
         return Fraction(0)
     ratios = [Fraction(m) / lead_least for m in magnitudes[1:]]  # |a_(n-1)| .. |a_0| over |a_n|
     cauchy = 1 + max(ratios)
-    terms = [_root_above(q / (2 if k == n else 1), k) for k, q in enumerate(ratios, start=1)]
+    terms = [root_above(q / (2 if k == n else 1), k) for k, q in enumerate(ratios, start=1)]
     return min(cauchy, 2 * max(terms))
