@@ -74,13 +74,16 @@ def ray_values(coefficients: Sequence[Fraction], t: Fraction, rho: Fraction) -> 
 
 
 def root_above(q: Fraction, k: int) -> Fraction:
-    """A rational r >= q^(1/k) (q >= 0), close to it: a float guess, checked exactly."""
+    """A rational r >= q^(1/k) (q >= 0), close to it (about 1e-9 relative): a float guess,
+    checked exactly and raised until it holds."""
     if q == 0:
         return Fraction(0)
     guess = Fraction(float(q) ** (1.0 / k)).limit_denominator(10**6) if q < 10**300 else Fraction(q)
     guess = max(guess, Fraction(1, 10**12))
+    step = Fraction(1, 2**30)  # from about 1e-9 relative, doubling: close above, and soon
     while guess**k < q:
-        guess *= Fraction(1025, 1024)
+        guess *= 1 + step
+        step *= 2
     return guess
 
 
