@@ -21,7 +21,6 @@ required margin about their nominal values: PASS, FAIL or OPEN per cell.
 
 from __future__ import annotations
 
-import functools
 import time
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
@@ -29,9 +28,7 @@ from fractions import Fraction
 
 from ..errors import InputError, did_you_mean
 from ..exact.numbers import format_fraction, parse_number
-from ..model.case import parse_case
 from ..model.family import Box
-from ..model.rewrite import source_text
 from .executor import TaskRunner
 from .outcomes import Outcome, Verdict, untestable
 from .requirements import decide_margin_over
@@ -208,12 +205,6 @@ class DesignMap:
 
 # -- one cell, on whichever worker --------------------------------------------------------
 
-@functools.lru_cache(maxsize=8)
-def _parsed(text: str, path: str):
-    """The case, parsed once per worker process."""
-    return parse_case(text, path)
-
-
 def _cell_box(family, indices: Sequence[int], ranges: Sequence[tuple[Fraction, Fraction]],
               scale: Fraction | None = None) -> Box:
     """The tolerance box (scaled by ``scale`` about nominal) with the design ranges put in."""
@@ -225,11 +216,10 @@ def _cell_box(family, indices: Sequence[int], ranges: Sequence[tuple[Fraction, F
 
 
 def decide_cell(task: tuple) -> dict:
-    """Decide one cell: ``task`` = (case text, case path, design indices, exact ranges as
-    strings, boxes per decision, safety seconds, required margin as a string or None).
-    Module level and plain in, plain out, so that any worker can run it."""
-    text, path, indices, ranges, max_boxes, max_seconds, required = task
-    family = _parsed(text, path).family
+    """Decide one cell: ``task`` = (family, design indices, exact ranges as strings, boxes per
+    decision, safety seconds, required margin as a string or None). Module level, plain out,
+    so that any worker can run it (the family travels as allocation's and the yield's do)."""
+    family, indices, ranges, max_boxes, max_seconds, required = task
     exact = [(Fraction(lo), Fraction(hi)) for lo, hi in ranges]
     box = _cell_box(family, indices, exact)
     problem = untestable(family, box)
@@ -275,14 +265,13 @@ def _touch(a: tuple, b: tuple) -> bool:
 def design_map(case, axes: Sequence[Axis], resolution: int = DEFAULT_RESOLUTION, depth: int = DEFAULT_DEPTH,
                max_cells: int = DEFAULT_MAX_CELLS, max_boxes: int = DEFAULT_CELL_BOXES,
                max_seconds: float = 60.0, workers: int | None = None, cluster: str | None = None,
-               progress: Callable[[int], None] | None = None, text: str | None = None) -> DesignMap:
+               progress: Callable[[int], None] | None = None) -> DesignMap:
     """Map the design region of ``axes`` (one or two) into certified cells.
 
     Parameters
     ----------
     case
-        A loaded case (:func:`robust.load_case`); its file is read again (and checked) to be
-        sent to the workers, unless ``text`` gives the case text.
+        A loaded case (:func:`robust.load_case` or :func:`robust.make_case`).
     axes
         From :func:`parse_axis`.
     resolution
@@ -304,7 +293,6 @@ def design_map(case, axes: Sequence[Axis], resolution: int = DEFAULT_RESOLUTION,
     """
     started = time.perf_counter()
     axes = check_axes(axes)
-    text = source_text(case) if text is None else text
     indices = tuple(a.index for a in axes)
     required = case.requirements.margin
     fine = resolution * 2 ** depth  # the finest grid, in whose integer units every cell lies
@@ -315,7 +303,7 @@ def design_map(case, axes: Sequence[Axis], resolution: int = DEFAULT_RESOLUTION,
                      for a, (lo, hi) in zip(axes, corner, strict=True))
 
     def decide_all(cells: list[tuple[int, tuple]], done_before: int) -> list[dict]:
-        tasks = [(text, case.path, indices,
+        tasks = [(case.family, indices,
                   tuple((format_fraction(lo), format_fraction(hi)) for lo, hi in exact(corner)),
                   max_boxes, max_seconds, None if required is None else format_fraction(required))
                  for _, corner in cells]

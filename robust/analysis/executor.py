@@ -16,9 +16,9 @@ replaced once by a fresh one that runs the chunks not yet finished; on dask ever
 be retried (``retries=``) on another worker. When that fails too, :class:`ExecutorError`
 says so. dask is imported only when a cluster address is given (``pip install ".[cluster]"``).
 
-Items travel by pickle: send text, paths and exact numbers as strings or Fractions, not
-live analysis objects (a case is sent as its file text and path and parsed again, once per
-worker process; see :mod:`robust.analysis.designmap`).
+Items travel by pickle: exact numbers, and a case's family (a few kilobytes: coefficients,
+box, limits), as map cells, allocation designs and yield chunks send it; no open files or
+other live resources.
 """
 
 from __future__ import annotations
