@@ -16,6 +16,7 @@ counted against the budget, never seconds.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import dataclass
 from fractions import Fraction
 from itertools import islice, product
 
@@ -25,13 +26,33 @@ from ..exact.bernstein import Patch, bernstein_patch
 from ..exact.polynomials import MultiPoly
 from ..model.family import Box
 
-__all__ = ["exclude_zeros", "float_roots", "least_magnitude", "screen_points"]
+__all__ = ["ExclusionTest", "exclude_zeros", "float_roots", "least_magnitude", "screen_points"]
 
 #: The weight of the favoured axis's share in the choice of the axis to halve: the ray's rho
 #: (or the axis's w) enters with degree n, the parameters mostly with degree 1 or 2, and
 #: halving it pays off sooner (4 was the best of 1/2, 1, 2, 4, 8, 16 in cells near the worst
 #: damping of cases/servo_pid.toml and cases/cascaded_motor_drive.toml).
 _FAVOURED_WEIGHT = 4.0
+
+
+@dataclass(frozen=True, slots=True)
+class ExclusionTest:
+    """What a zero-exclusion test (:func:`robust.analysis.sector.prove_sector`,
+    :func:`robust.analysis.lag.prove_lag`) found.
+
+    ``status``: ``proven`` (the criterion holds at every point of the box), ``refuted``
+    (``point`` is a candidate the caller checks exactly; the lag test appends u =
+    tan^2(theta / 2) to the parameters) or ``open`` (a condition could not be shown, or the
+    budget ran out). ``cells``: the Bernstein cells tested; ``radius``: the root bound R;
+    ``t_high``: the lag test's T = tan(theta / 2) rounded up (None for the ray test).
+    """
+
+    status: str
+    point: tuple[Fraction, ...] | None = None
+    cells: int = 0
+    radius: Fraction | None = None
+    reason: str = ""
+    t_high: Fraction | None = None
 
 
 def exclude_zeros(real: MultiPoly, imag: MultiPoly, box: Sequence[tuple[Fraction, Fraction]],

@@ -36,7 +36,6 @@ up proves a little more than asked.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from fractions import Fraction
 
 import numpy as np
@@ -45,31 +44,13 @@ from ..exact.numbers import from_mpq
 from ..exact.polynomials import MultiPoly, as_intervals
 from ..exact.rays import axis_parts, root_above, root_bound
 from ..exact.routh import is_hurwitz
-from ..model.family import Box, UncertainPolynomial, sign_over_box
-from .exclusion import exclude_zeros, float_roots, least_magnitude, screen_points
+from ..model.family import Box, UncertainPolynomial, loop_sum_and_difference, sign_over_box
+from .exclusion import ExclusionTest, exclude_zeros, float_roots, least_magnitude, screen_points
 
-__all__ = ["METHOD_TEXT", "LagTest", "lag_parts", "prove_lag", "tan_half"]
+__all__ = ["METHOD_TEXT", "lag_parts", "prove_lag", "tan_half"]
 
 METHOD_TEXT = ("zero exclusion on the imaginary axis for every extra lag"
                " (Bernstein in w, the lag and the parameters)")
-
-@dataclass(frozen=True, slots=True)
-class LagTest:
-    """What :func:`prove_lag` found.
-
-    ``status``: ``proven`` (every member with every lag up to the asked one is stable),
-    ``refuted`` (``point``, parameters then u = tan^2(theta / 2), is a candidate the caller
-    checks exactly) or ``open``. ``cells``: the cells of B x [0, T] x [-R, R] tested;
-    ``radius``: R; ``t_high``: T.
-    """
-
-    status: str
-    point: tuple[Fraction, ...] | None = None
-    cells: int = 0
-    radius: Fraction | None = None
-    t_high: Fraction | None = None
-    reason: str = ""
-
 
 def tan_half(u: Fraction) -> Fraction:
     """A rational T >= sqrt(u), u = tan^2(theta / 2) >= 0: exact when u is the square of a
@@ -83,10 +64,7 @@ def tan_half(u: Fraction) -> Fraction:
 
 def lag_parts(family: UncertainPolynomial) -> tuple[list[MultiPoly], list[MultiPoly], MultiPoly, MultiPoly]:
     """(A, B, Re F(j w), Im F(j w)) of a loop: A = D + N, B = D - N (highest power first)."""
-    k = len(family.names)
-    d, n = family.loop
-    total = [MultiPoly.linear_combination(k, [a, b], [1, 1]) for a, b in zip(d, n, strict=True)]
-    diff = [MultiPoly.linear_combination(k, [a, b], [1, -1]) for a, b in zip(d, n, strict=True)]
+    total, diff = loop_sum_and_difference(family)
     return (total, diff, *axis_parts(total, diff))
 
 
@@ -107,7 +85,7 @@ def _screen(family: UncertainPolynomial, box: Box, u: Fraction) -> tuple[Fractio
 
 
 def prove_lag(family: UncertainPolynomial, u: Fraction, box: Box | None = None,
-              max_boxes: int = 500) -> LagTest:
+              max_boxes: int = 500) -> ExclusionTest:
     """Prove that every member over ``box`` (default: the family's) stays stable under every
     extra lag theta with tan^2(theta / 2) <= u, or name a candidate point (continuous-time
     loops)."""
@@ -115,12 +93,13 @@ def prove_lag(family: UncertainPolynomial, u: Fraction, box: Box | None = None,
     inside = family.nominal if box.contains(family.nominal) else box.center
     total, diff, real, imag = lag_parts(family)
     if not is_hurwitz([c.evaluate(inside) for c in total]):
-        return LagTest("refuted", (*inside, Fraction(0)), reason="the closed loop is unstable at a point")
+        return ExclusionTest("refuted", (*inside, Fraction(0)),
+                             reason="the closed loop is unstable at a point")
     if sign_over_box(total[0], box) not in (1, -1):
-        return LagTest("open", reason="the leading coefficient is not shown to keep its sign")
+        return ExclusionTest("open", reason="the leading coefficient is not shown to keep its sign")
     screened = _screen(family, box, u)
     if screened is not None:
-        return LagTest("refuted", (*screened, Fraction(u)), reason="a box corner with the full lag")
+        return ExclusionTest("refuted", (*screened, Fraction(u)), reason="a box corner with the full lag")
     t_high = tan_half(u)
     intervals = as_intervals(box.intervals)
 
@@ -130,12 +109,13 @@ def prove_lag(family: UncertainPolynomial, u: Fraction, box: Box | None = None,
 
     least = least_magnitude(total[0], *extent(total[0]), box)
     if least is None:
-        return LagTest("open", reason="no lower bound on the leading coefficient's magnitude")
+        return ExclusionTest("open", reason="no lower bound on the leading coefficient's magnitude")
     magnitudes = [max(map(abs, extent(a))) + t_high * max(map(abs, extent(b)))
                   for a, b in zip(total, diff, strict=True)]
     radius = root_bound(magnitudes, least)
     cell = (*box.intervals, (Fraction(0), t_high), (-radius, radius))
     proven, count = exclude_zeros(real, imag, cell, len(family.names) + 1, max_boxes)
     if not proven:
-        return LagTest("open", cells=count, radius=radius, t_high=t_high, reason="the work budget ran out")
-    return LagTest("proven", cells=count, radius=radius, t_high=t_high)
+        return ExclusionTest("open", cells=count, radius=radius, t_high=t_high,
+                             reason="the work budget ran out")
+    return ExclusionTest("proven", cells=count, radius=radius, t_high=t_high)

@@ -30,7 +30,6 @@ over B x [0, R] by Bernstein cells.
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 from fractions import Fraction
 
 import numpy as np
@@ -39,28 +38,11 @@ from ..exact.rays import ray_parts, root_bound
 from ..exact.regions import damping_of, sector_product
 from ..exact.routh import is_hurwitz
 from ..model.family import Box, UncertainPolynomial, sign_over_box
-from .exclusion import exclude_zeros, float_roots, least_magnitude, screen_points
+from .exclusion import ExclusionTest, exclude_zeros, float_roots, least_magnitude, screen_points
 
-__all__ = ["METHOD_TEXT", "SectorTest", "prove_sector", "sector_inside"]
+__all__ = ["METHOD_TEXT", "prove_sector", "sector_inside"]
 
 METHOD_TEXT = "zero exclusion on the sector's boundary ray (Bernstein in rho and the parameters)"
-
-@dataclass(frozen=True, slots=True)
-class SectorTest:
-    """What :func:`prove_sector` found.
-
-    ``status``: ``proven`` (every root of every member has damping ratio above damping_of(t)),
-    ``refuted`` (``point``, in the box, has a root outside the open sector, checked exactly) or
-    ``open`` (a condition could not be shown, or the budget ran out). ``cells``: the cells of
-    B x [0, R] tested; ``radius``: R.
-    """
-
-    status: str
-    point: tuple[Fraction, ...] | None = None
-    cells: int = 0
-    radius: Fraction | None = None
-    reason: str = ""
-
 
 def sector_inside(coefficients: Sequence[Fraction], t: Fraction) -> bool:
     """Every root of p (highest power first) has damping ratio above damping_of(t), exactly
@@ -86,30 +68,30 @@ def _screen(family: UncertainPolynomial, box: Box, t: Fraction) -> tuple[Fractio
 
 
 def prove_sector(family: UncertainPolynomial, t: Fraction, box: Box | None = None,
-                max_boxes: int = 500) -> SectorTest:
+                max_boxes: int = 500) -> ExclusionTest:
     """Prove that every root of every member over ``box`` (default: the family's) has damping
     ratio above damping_of(t), or find a point of the box where one has not (continuous time)."""
     box = box or family.box
     a = family.coefficients
     inside = family.nominal if box.contains(family.nominal) else box.center
     if not sector_inside(family.coefficients_at(inside), t):
-        return SectorTest("refuted", tuple(inside), reason="a point of the box is outside the sector")
+        return ExclusionTest("refuted", tuple(inside), reason="a point of the box is outside the sector")
     if all(lo == hi for lo, hi in box.intervals):  # one point: its exact test is the answer
-        return SectorTest("proven")
+        return ExclusionTest("proven")
     for k, label in ((0, "leading"), (len(a) - 1, "constant")):
         if sign_over_box(a[k], box) not in (1, -1):
-            return SectorTest("open", reason=f"the {label} coefficient is not shown to keep its sign")
+            return ExclusionTest("open", reason=f"the {label} coefficient is not shown to keep its sign")
     screened = _screen(family, box, t)
     if screened is not None and not sector_inside(family.coefficients_at(screened), t):
-        return SectorTest("refuted", screened, reason="a box corner is outside the sector")
+        return ExclusionTest("refuted", screened, reason="a box corner is outside the sector")
     bounds = family.bounds(box)
     least = least_magnitude(a[0], bounds[0].low, bounds[0].high, box)
     if least is None:
-        return SectorTest("open", reason="no lower bound on the leading coefficient's magnitude")
+        return ExclusionTest("open", reason="no lower bound on the leading coefficient's magnitude")
     radius = root_bound([max(abs(b.low), abs(b.high)) for b in bounds], least)
     real, imag = ray_parts(a, t)
     proven, count = exclude_zeros(real, imag, (*box.intervals, (Fraction(0), radius)), len(family.names),
                                   max_boxes)
     if not proven:
-        return SectorTest("open", cells=count, radius=radius, reason="the work budget ran out")
-    return SectorTest("proven", cells=count, radius=radius)
+        return ExclusionTest("open", cells=count, radius=radius, reason="the work budget ran out")
+    return ExclusionTest("proven", cells=count, radius=radius)

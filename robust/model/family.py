@@ -26,8 +26,8 @@ if TYPE_CHECKING:  # sympy is loaded only by the functions that take sympy input
     import sympy as sp
 
 __all__ = ["Box", "UncertainPolynomial", "build_family", "classify", "discrete_family", "gain_family",
-           "limit_reached", "phase_family", "radius_family", "sector_family", "shifted_family",
-           "sign_over_box"]
+           "limit_reached", "loop_sum_and_difference", "phase_family", "radius_family", "sector_family",
+           "shifted_family", "sign_over_box"]
 
 #: The dependence classes, from the most to the least structured.
 KINDS = ("independent", "affine", "multilinear", "polynomial")
@@ -588,6 +588,17 @@ def gain_family(family: UncertainPolynomial, low: Fraction, high: Fraction) -> U
     return _with_extra(family, LOOP_GAIN, coefficients, Fraction(low), Fraction(high), Fraction(1))
 
 
+def loop_sum_and_difference(family: UncertainPolynomial) -> tuple[list[MultiPoly], list[MultiPoly]]:
+    """(D + N, D - N) of the family's loop, highest power first: the real and the lag part of
+    (D + N) + j t (D - N), whose roots are those of D + e^(-j theta) N, t = tan(theta / 2)."""
+    if not family.loop:
+        raise ValueError("the phase margin needs a loop (plant and controller)")
+    k = len(family.names)
+    d, n = family.loop
+    return ([MultiPoly.linear_combination(k, [a, b], [1, 1]) for a, b in zip(d, n, strict=True)],
+            [MultiPoly.linear_combination(k, [a, b], [1, -1]) for a, b in zip(d, n, strict=True)])
+
+
 def phase_family(family: UncertainPolynomial, high: Fraction) -> UncertainPolynomial:
     """The loop with an extra phase lag e^(-j theta), tan^2(theta / 2) = u in [0, high], as
     one more parameter named :data:`PHASE_LAG`.
@@ -597,12 +608,8 @@ def phase_family(family: UncertainPolynomial, high: Fraction) -> UncertainPolyno
     conjugate roots, in the same half-plane (or disk), so c is stable exactly when the real
     c * conj(c) = (D + N)^2 + u (D - N)^2 is: real coefficients, affine in u.
     """
-    if not family.loop:
-        raise ValueError("the phase margin needs a loop (plant and controller)")
     k = len(family.names)
-    d, n = family.loop
-    total = [MultiPoly.linear_combination(k, [a, b], [1, 1]) for a, b in zip(d, n, strict=True)]
-    diff = [MultiPoly.linear_combination(k, [a, b], [1, -1]) for a, b in zip(d, n, strict=True)]
+    total, diff = loop_sum_and_difference(family)
     u = MultiPoly.from_mapping(k + 1, {(0,) * k + (1,): 1})
 
     def square(coeffs: Sequence[MultiPoly]) -> list[MultiPoly]:
